@@ -1,0 +1,32 @@
+package service
+
+import (
+	"context"
+
+	"github.com/google/uuid"
+)
+
+// Store is the persistence the service needs. store.Store implements it on
+// PostgreSQL; every method is scoped to one organisation where it takes one.
+type Store interface {
+	// Ping reports whether the database answers.
+	Ping(ctx context.Context) error
+
+	CreateOrganisation(ctx context.Context, o Organisation) error
+	GetOrganisation(ctx context.Context, id uuid.UUID) (Organisation, error)
+
+	CreateLocation(ctx context.Context, l Location) error
+	GetLocation(ctx context.Context, orgID, id uuid.UUID) (Location, error)
+	ListLocations(ctx context.Context, orgID uuid.UUID, p Page) ([]Location, error)
+	// UpdateLocation applies the patch when the stored version equals
+	// version; ErrPreconditionFailed otherwise.
+	UpdateLocation(ctx context.Context, orgID, id uuid.UUID, version int64, p LocationPatch) (Location, error)
+
+	CreateAPIKey(ctx context.Context, k APIKey) error
+	// APIKeyByPrefix returns the key (revoked or not) with the prefix, in any
+	// organisation: it is how a request is authenticated.
+	APIKeyByPrefix(ctx context.Context, prefix string) (APIKey, Organisation, error)
+	ListAPIKeys(ctx context.Context, orgID uuid.UUID, p Page) ([]APIKey, error)
+	RevokeAPIKey(ctx context.Context, orgID, id uuid.UUID) (APIKey, error)
+	RevokeAPIKeyByPrefix(ctx context.Context, prefix string) (APIKey, error)
+}

@@ -1,0 +1,108 @@
+package service
+
+import (
+	"strconv"
+	"time"
+
+	"github.com/google/uuid"
+)
+
+// Role orders what a key may do: read < write < admin.
+type Role string
+
+// Roles.
+const (
+	RoleRead  Role = "read"
+	RoleWrite Role = "write"
+	RoleAdmin Role = "admin"
+)
+
+// rank gives each role its order; unknown roles rank below read.
+func (r Role) rank() int {
+	switch r {
+	case RoleRead:
+		return 1
+	case RoleWrite:
+		return 2
+	case RoleAdmin:
+		return 3
+	}
+	return 0
+}
+
+// Valid reports whether r is a known role.
+func (r Role) Valid() bool { return r.rank() > 0 }
+
+// AtLeast reports whether r allows what min allows.
+func (r Role) AtLeast(min Role) bool { return r.rank() >= min.rank() && r.rank() > 0 }
+
+// Principal is the authenticated caller: one API key of one organisation.
+type Principal struct {
+	OrgID      uuid.UUID
+	OrgName    string
+	KeyID      uuid.UUID
+	LocationID *uuid.UUID
+	Role       Role
+}
+
+// Organisation is a tenant: a shop or a chain of shops.
+type Organisation struct {
+	ID        uuid.UUID
+	Name      string
+	CreatedAt time.Time
+}
+
+// Location is one of an organisation's shops.
+type Location struct {
+	ID        uuid.UUID
+	OrgID     uuid.UUID
+	Name      string
+	Code      string
+	Timezone  string
+	Address   string
+	Version   int64
+	CreatedAt time.Time
+	UpdatedAt time.Time
+}
+
+// ETag is the location's entity tag for optimistic concurrency.
+func (l Location) ETag() string { return ETag(l.ID, l.Version) }
+
+// ETag formats a strong entity tag from an id and a version.
+func ETag(id uuid.UUID, version int64) string {
+	return `"` + id.String() + "." + strconv.FormatInt(version, 10) + `"`
+}
+
+// LocationPatch holds the fields a PATCH may change; nil leaves a field.
+type LocationPatch struct {
+	Name     *string
+	Code     *string
+	Timezone *string
+	Address  *string
+}
+
+// APIKey is a stored key: only its hash and a display prefix are kept.
+type APIKey struct {
+	ID         uuid.UUID
+	OrgID      uuid.UUID
+	LocationID *uuid.UUID
+	Role       Role
+	Name       string
+	Prefix     string
+	Hash       []byte
+	CreatedAt  time.Time
+	RevokedAt  *time.Time
+}
+
+// Page asks for one page of a list.
+type Page struct {
+	Limit int
+	// After is the id of the last item of the previous page (zero: from the start).
+	After uuid.UUID
+}
+
+// Page size bounds for every list.
+const (
+	DefaultPageSize = 50
+	MaxPageSize     = 200
+)

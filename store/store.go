@@ -1,0 +1,111 @@
+// Package store is the PostgreSQL implementation of service.Store: SQL on a
+// pgx v5 pool, embedded migrations run by goose. It imports service for its
+// types and errors only; nothing in it decides business rules.
+package store
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"time"
+
+	"github.com/jackc/pgx/v5"
+	"github.com/jackc/pgx/v5/pgconn"
+	"github.com/jackc/pgx/v5/pgxpool"
+
+	"wheelbench/service"
+)
+
+// querier is what both *pgxpool.Pool and pgx.Tx offer.
+type querier interface {
+	Exec(ctx context.Context, sql string, args ...any) (pgconn.CommandTag, error)
+	Query(ctx context.Context, sql string, args ...any) (pgx.Rows, error)
+	QueryRow(ctx context.Context, sql string, args ...any) pgx.Row
+}
+
+// Store implements service.Store on a pgx pool.
+type Store struct {
+	pool *pgxpool.Pool
+	q    querier
+}
+
+var _ service.Store = (*Store)(nil)
+
+// New returns a Store over pool.
+func New(pool *pgxpool.Pool) *Store { return &Store{pool: pool, q: pool} }
+
+// Pool returns the underlying pool (for metrics).
+func (s *Store) Pool() *pgxpool.Pool { return s.pool }
+
+// wrap translates driver errors to the service's sentinels: no rows →
+// ErrNotFound, unique or foreign-key violation → ErrConflict, a connection
+// failure → ErrUnavailable. Call it once, deferred, per exported method.
+func wrap(err *error, what string) {
+	if *err == nil {
+		return
+	}
+	e := *err
+	var pgErr *pgconn.PgError
+	switch {
+	case errors.Is(e, pgx.ErrNoRows):
+		*err = fmt.Errorf("%s: %w", what, service.ErrNotFound)
+	case errors.As(e, &pgErr) && (pgErr.Code == "23505" || pgErr.Code == "23503"):
+		*err = fmt.Errorf("%s: %w: %s", what, service.ErrConflict, pgErr.ConstraintName)
+	case errors.As(e, &pgErr) && pgErr.Code == "22P02":
+		*err = fmt.Errorf("%s: %w", what, service.ErrNotFound) // malformed id text
+	case isUnavailable(e):
+		*err = fmt.Errorf("%s: %w: %v", what, service.ErrUnavailable, e)
+	case errors.Is(e, service.ErrNotFound), errors.Is(e, service.ErrConflict),
+		errors.Is(e, service.ErrPreconditionFailed), errors.Is(e, service.ErrInvalid):
+		*err = fmt.Errorf("%s: %w", what, e)
+	default:
+		*err = fmt.Errorf("%s: %w", what, e)
+	}
+}
+
+// isUnavailable reports errors that mean the database cannot be reached or
+// is shutting down, as opposed to a bad statement.
+func isUnavailable(err error) bool {
+	var pgErr *pgconn.PgError
+	if errors.As(err, &pgErr) {
+		switch pgErr.Code[:2] {
+		case "08", "57": // connection exception, operator intervention
+			return true
+		}
+		return false
+	}
+	var connErr *pgconn.ConnectError
+	if errors.As(err, &connErr) || pgconn.SafeToRetry(err) || pgconn.Timeout(err) {
+		return true
+	}
+	var netErr interface{ Timeout() bool }
+	if errors.As(err, &netErr) {
+		return true
+	}
+	return errors.Is(err, context.DeadlineExceeded) && !errors.Is(err, context.Canceled)
+}
+
+// inTx runs fn in a transaction, retrying a bounded number of times on
+// serialization failures and deadlocks (40001, 40P01).
+func (s *Store) inTx(ctx context.Context, fn func(tx pgx.Tx) error) error {
+	var err error
+	for attempt := 0; attempt < 4; attempt++ {
+		err = pgx.BeginFunc(ctx, s.pool, fn)
+		var pgErr *pgconn.PgError
+		if errors.As(err, &pgErr) && (pgErr.Code == "40001" || pgErr.Code == "40P01") {
+			time.Sleep(time.Duration(attempt+1) * 5 * time.Millisecond)
+			continue
+		}
+		return err
+	}
+	return err
+}
+
+// Ping reports whether the database answers within a second.
+func (s *Store) Ping(ctx context.Context) (err error) {
+	defer wrap(&err, "ping")
+	ctx, cancel := context.WithTimeout(ctx, time.Second)
+	defer cancel()
+	var one int
+	return s.pool.QueryRow(ctx, "SELECT 1").Scan(&one)
+}
