@@ -157,3 +157,8 @@ func (s *Service) UpdateLocation(ctx context.Context, p Principal, id uuid.UUID,
 	}
 	return s.store.UpdateLocation(ctx, p.OrgID, id, cur.Version, patch)
 }
+
+// Ready reports whether the database answers.
+func (s *Service) Ready(ctx context.Context) error {
+	return s.store.Ping(ctx)
+}

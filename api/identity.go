@@ -1,0 +1,208 @@
+package api
+
+import (
+	"net/http"
+	"time"
+
+	"github.com/google/uuid"
+	"github.com/labstack/echo/v4"
+
+	"wheelbench/service"
+)
+
+type locationJSON struct {
+	ID        uuid.UUID `json:"id"`
+	Name      string    `json:"name"`
+	Code      string    `json:"code"`
+	Timezone  string    `json:"timezone"`
+	Address   string    `json:"address"`
+	CreatedAt time.Time `json:"created_at"`
+	UpdatedAt time.Time `json:"updated_at"`
+}
+
+func toLocationJSON(l service.Location) locationJSON {
+	return locationJSON{ID: l.ID, Name: l.Name, Code: l.Code, Timezone: l.Timezone, Address: l.Address,
+		CreatedAt: l.CreatedAt.UTC(), UpdatedAt: l.UpdatedAt.UTC()}
+}
+
+type meJSON struct {
+	Organisation struct {
+		ID   uuid.UUID `json:"id"`
+		Name string    `json:"name"`
+	} `json:"organisation"`
+	Location *locationJSON `json:"location,omitempty"`
+	Role     service.Role  `json:"role"`
+	KeyID    uuid.UUID     `json:"key_id"`
+}
+
+func (s *Server) getMe(c echo.Context) error {
+	me, err := s.svc.WhoAmI(c.Request().Context(), principal(c))
+	if err != nil {
+		return err
+	}
+	var out meJSON
+	out.Organisation.ID, out.Organisation.Name = me.Organisation.ID, me.Organisation.Name
+	if me.Location != nil {
+		l := toLocationJSON(*me.Location)
+		out.Location = &l
+	}
+	out.Role, out.KeyID = me.Principal.Role, me.Principal.KeyID
+	return c.JSON(http.StatusOK, out)
+}
+
+type listJSON[T any] struct {
+	Items      []T    `json:"items"`
+	NextCursor string `json:"next_cursor,omitempty"`
+}
+
+func (s *Server) listLocations(c echo.Context) error {
+	p, err := page(c)
+	if err != nil {
+		return err
+	}
+	ls, err := s.svc.ListLocations(c.Request().Context(), principal(c), p)
+	if err != nil {
+		return err
+	}
+	out := listJSON[locationJSON]{Items: make([]locationJSON, 0, len(ls))}
+	for _, l := range ls {
+		out.Items = append(out.Items, toLocationJSON(l))
+	}
+	if len(ls) > 0 {
+		out.NextCursor = nextCursor(len(ls), p.Limit, ls[len(ls)-1].ID)
+	}
+	return c.JSON(http.StatusOK, out)
+}
+
+type locationCreateJSON struct {
+	Name     string `json:"name"`
+	Code     string `json:"code"`
+	Timezone string `json:"timezone"`
+	Address  string `json:"address"`
+}
+
+func (s *Server) createLocation(c echo.Context) error {
+	var in locationCreateJSON
+	if err := decode(c, &in); err != nil {
+		return err
+	}
+	l, err := s.svc.CreateLocation(c.Request().Context(), principal(c), service.LocationInput{
+		Name: in.Name, Code: in.Code, Timezone: in.Timezone, Address: in.Address})
+	if err != nil {
+		return err
+	}
+	c.Response().Header().Set("ETag", l.ETag())
+	c.Response().Header().Set("Location", "/v1/locations/"+l.ID.String())
+	return c.JSON(http.StatusCreated, toLocationJSON(l))
+}
+
+func (s *Server) getLocation(c echo.Context) error {
+	id, err := pathID(c)
+	if err != nil {
+		return err
+	}
+	l, err := s.svc.GetLocation(c.Request().Context(), principal(c), id)
+	if err != nil {
+		return err
+	}
+	c.Response().Header().Set("ETag", l.ETag())
+	return c.JSON(http.StatusOK, toLocationJSON(l))
+}
+
+type locationPatchJSON struct {
+	Name     *string `json:"name"`
+	Code     *string `json:"code"`
+	Timezone *string `json:"timezone"`
+	Address  *string `json:"address"`
+}
+
+func (s *Server) updateLocation(c echo.Context) error {
+	id, err := pathID(c)
+	if err != nil {
+		return err
+	}
+	var in locationPatchJSON
+	if err := decode(c, &in); err != nil {
+		return err
+	}
+	l, err := s.svc.UpdateLocation(c.Request().Context(), principal(c), id, c.Request().Header.Get("If-Match"),
+		service.LocationPatch{Name: in.Name, Code: in.Code, Timezone: in.Timezone, Address: in.Address})
+	if err != nil {
+		return err
+	}
+	c.Response().Header().Set("ETag", l.ETag())
+	return c.JSON(http.StatusOK, toLocationJSON(l))
+}
+
+type apiKeyJSON struct {
+	ID         uuid.UUID    `json:"id"`
+	Prefix     string       `json:"prefix"`
+	Role       service.Role `json:"role"`
+	Name       string       `json:"name"`
+	LocationID *uuid.UUID   `json:"location_id,omitempty"`
+	CreatedAt  time.Time    `json:"created_at"`
+	RevokedAt  *time.Time   `json:"revoked_at,omitempty"`
+	Key        string       `json:"key,omitempty"`
+}
+
+func toAPIKeyJSON(k service.APIKey) apiKeyJSON {
+	out := apiKeyJSON{ID: k.ID, Prefix: k.Prefix, Role: k.Role, Name: k.Name, LocationID: k.LocationID, CreatedAt: k.CreatedAt.UTC()}
+	if k.RevokedAt != nil {
+		t := k.RevokedAt.UTC()
+		out.RevokedAt = &t
+	}
+	return out
+}
+
+func (s *Server) listAPIKeys(c echo.Context) error {
+	p, err := page(c)
+	if err != nil {
+		return err
+	}
+	ks, err := s.svc.ListAPIKeys(c.Request().Context(), principal(c), p)
+	if err != nil {
+		return err
+	}
+	out := listJSON[apiKeyJSON]{Items: make([]apiKeyJSON, 0, len(ks))}
+	for _, k := range ks {
+		out.Items = append(out.Items, toAPIKeyJSON(k))
+	}
+	if len(ks) > 0 {
+		out.NextCursor = nextCursor(len(ks), p.Limit, ks[len(ks)-1].ID)
+	}
+	return c.JSON(http.StatusOK, out)
+}
+
+type apiKeyCreateJSON struct {
+	Role       service.Role `json:"role"`
+	Name       string       `json:"name"`
+	LocationID *uuid.UUID   `json:"location_id"`
+}
+
+func (s *Server) createAPIKey(c echo.Context) error {
+	var in apiKeyCreateJSON
+	if err := decode(c, &in); err != nil {
+		return err
+	}
+	k, err := s.svc.CreateAPIKey(c.Request().Context(), principal(c).OrgID,
+		service.NewKeyInput{Name: in.Name, Role: in.Role, LocationID: in.LocationID})
+	if err != nil {
+		return err
+	}
+	out := toAPIKeyJSON(k.APIKey)
+	out.Key = k.Secret
+	c.Response().Header().Set("Cache-Control", "no-store")
+	return c.JSON(http.StatusCreated, out)
+}
+
+func (s *Server) revokeAPIKey(c echo.Context) error {
+	id, err := pathID(c)
+	if err != nil {
+		return err
+	}
+	k, err := s.svc.RevokeAPIKey(c.Request().Context(), principal(c), id)
+	if err != nil {
+		return err
+	}
+	return c.JSON(http.StatusOK, toAPIKeyJSON(k))
+}

@@ -1,0 +1,252 @@
+package api
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"net/http"
+	"strings"
+
+	"github.com/getkin/kin-openapi/openapi3"
+	"github.com/getkin/kin-openapi/openapi3filter"
+	"github.com/labstack/echo/v4"
+
+	"wheelbench/service"
+)
+
+// Problem is an RFC 9457 problem details body.
+type Problem struct {
+	Type      string         `json:"type"`
+	Title     string         `json:"title"`
+	Status    int            `json:"status"`
+	Detail    string         `json:"detail,omitempty"`
+	Instance  string         `json:"instance,omitempty"`
+	RequestID string         `json:"request_id,omitempty"`
+	Errors    []FieldProblem `json:"errors,omitempty"`
+}
+
+// FieldProblem names one bad field: an RFC 6901 pointer into the body, or
+// "query:NAME", "header:NAME", "path:NAME" for parameters.
+type FieldProblem struct {
+	Pointer string `json:"pointer"`
+	Message string `json:"message"`
+}
+
+// fieldError is what every package's field error offers (service.FieldError
+// and the pure packages' own types).
+type fieldError interface {
+	error
+	FieldPointer() string
+	IsUnprocessable() bool
+}
+
+// validationError is a set of field problems found by the HTTP layer itself
+// (spec validation, JSON decoding).
+type validationError struct {
+	status int
+	detail string
+	fields []FieldProblem
+}
+
+func (e *validationError) Error() string { return e.detail }
+
+// statusOf maps the service's error kinds to HTTP statuses: the one table.
+var statusOf = []struct {
+	err    error
+	status int
+}{
+	{service.ErrNotFound, http.StatusNotFound},
+	{service.ErrConflict, http.StatusConflict},
+	{service.ErrInvalid, http.StatusBadRequest},
+	{service.ErrUnprocessable, http.StatusUnprocessableEntity},
+	{service.ErrUnauthenticated, http.StatusUnauthorized},
+	{service.ErrForbidden, http.StatusForbidden},
+	{service.ErrPreconditionFailed, http.StatusPreconditionFailed},
+	{service.ErrPreconditionRequired, http.StatusPreconditionRequired},
+	{service.ErrUnavailable, http.StatusServiceUnavailable},
+}
+
+// collectFieldErrors walks err's tree (errors.Join included) for field errors.
+func collectFieldErrors(err error, out []fieldError) []fieldError {
+	if fe, ok := err.(fieldError); ok {
+		return append(out, fe)
+	}
+	switch u := err.(type) {
+	case interface{ Unwrap() []error }:
+		for _, e := range u.Unwrap() {
+			out = collectFieldErrors(e, out)
+		}
+	case interface{ Unwrap() error }:
+		if e := u.Unwrap(); e != nil {
+			out = collectFieldErrors(e, out)
+		}
+	}
+	return out
+}
+
+// toProblem turns any error into a problem; internal reports whether it is a
+// server fault (logged, with a generic title).
+func toProblem(err error) (p Problem, internal bool) {
+	var hp *httpProblem
+	if errors.As(err, &hp) {
+		return Problem{Status: hp.status, Title: http.StatusText(hp.status), Detail: hp.detail}, false
+	}
+	var ve *validationError
+	if errors.As(err, &ve) {
+		return Problem{Status: ve.status, Title: http.StatusText(ve.status), Detail: ve.detail, Errors: ve.fields}, false
+	}
+	if fes := collectFieldErrors(err, nil); len(fes) > 0 {
+		status := http.StatusBadRequest
+		for _, fe := range fes {
+			if fe.IsUnprocessable() {
+				status = http.StatusUnprocessableEntity
+			}
+		}
+		p := Problem{Status: status, Title: http.StatusText(status)}
+		for _, fe := range fes {
+			// Every field is listed, so that a client can mend them all at once.
+			p.Errors = append(p.Errors, FieldProblem{Pointer: fe.FieldPointer(), Message: messageOf(fe)})
+		}
+		if status == http.StatusUnprocessableEntity {
+			p.Detail = "The request is well-formed but cannot be carried out: see errors."
+		} else {
+			p.Detail = "The request has invalid fields: see errors."
+		}
+		return p, false
+	}
+	var mbe *http.MaxBytesError
+	if errors.As(err, &mbe) {
+		return Problem{Status: http.StatusRequestEntityTooLarge, Title: http.StatusText(http.StatusRequestEntityTooLarge),
+			Detail: fmt.Sprintf("The body is larger than this route's limit of %d bytes.", mbe.Limit)}, false
+	}
+	var he *echo.HTTPError
+	if errors.As(err, &he) {
+		detail := ""
+		if m, ok := he.Message.(string); ok {
+			detail = m
+		}
+		if he.Code == http.StatusRequestEntityTooLarge {
+			detail = "The body is larger than this route's limit."
+		}
+		if he.Code >= 500 {
+			return Problem{Status: he.Code, Title: http.StatusText(he.Code)}, true
+		}
+		return Problem{Status: he.Code, Title: http.StatusText(he.Code), Detail: detail}, false
+	}
+	for _, m := range statusOf {
+		if errors.Is(err, m.err) {
+			p := Problem{Status: m.status, Title: http.StatusText(m.status), Detail: detailOf(err)}
+			if m.status == http.StatusServiceUnavailable {
+				p.Detail = "The database cannot be reached; retry shortly."
+			}
+			return p, false
+		}
+	}
+	if errors.Is(err, context.DeadlineExceeded) {
+		return Problem{Status: http.StatusServiceUnavailable, Title: http.StatusText(http.StatusServiceUnavailable),
+			Detail: "The request took too long; retry shortly."}, false
+	}
+	return Problem{Status: http.StatusInternalServerError, Title: http.StatusText(http.StatusInternalServerError)}, true
+}
+
+// messageOf is a field error's message without its pointer prefix.
+func messageOf(fe fieldError) string {
+	type messager interface{ FieldMessage() string }
+	if m, ok := fe.(messager); ok {
+		return m.FieldMessage()
+	}
+	msg := fe.Error()
+	return strings.TrimPrefix(msg, fe.FieldPointer()+": ")
+}
+
+// detailOf renders a sentinel-wrapped error as a sentence. Store errors are
+// wrapped with the operation's name only, never SQL text.
+func detailOf(err error) string {
+	s := err.Error()
+	if len(s) > 0 {
+		return strings.ToUpper(s[:1]) + s[1:] + "."
+	}
+	return ""
+}
+
+// fromSpecError converts a kin-openapi request validation error.
+func fromSpecError(err error) error {
+	var fields []FieldProblem
+	status := http.StatusBadRequest
+	detail := "The request does not match the API description: see errors."
+	var add func(e error)
+	add = func(e error) {
+		if me, ok := e.(openapi3.MultiError); ok {
+			for _, x := range me {
+				add(x)
+			}
+			return
+		}
+		var re *openapi3filter.RequestError
+		if errors.As(e, &re) {
+			var mbe *http.MaxBytesError
+			if errors.As(e, &mbe) {
+				status = http.StatusRequestEntityTooLarge
+				detail = fmt.Sprintf("The body is larger than this route's limit of %d bytes.", mbe.Limit)
+				return
+			}
+			if re.Parameter != nil {
+				msg := re.Reason
+				var se *openapi3.SchemaError
+				if errors.As(re.Err, &se) {
+					msg = se.Reason
+				} else if re.Err != nil && msg == "" {
+					msg = re.Err.Error()
+				}
+				fields = append(fields, FieldProblem{Pointer: re.Parameter.In + ":" + re.Parameter.Name, Message: msg})
+				return
+			}
+			if strings.Contains(re.Reason, "Content-Type") {
+				status = http.StatusUnsupportedMediaType
+				detail = "Send the body as application/json."
+				return
+			}
+			if re.Err == nil {
+				fields = append(fields, FieldProblem{Pointer: "", Message: re.Reason})
+				return
+			}
+			var pe *openapi3filter.ParseError
+			if errors.As(re.Err, &pe) {
+				fields = append(fields, FieldProblem{Pointer: "", Message: "the body is not valid JSON"})
+				return
+			}
+			add(re.Err)
+			return
+		}
+		var se *openapi3.SchemaError
+		if errors.As(e, &se) {
+			ptr := se.JSONPointer()
+			p := ""
+			for _, s := range ptr {
+				p += "/" + strings.ReplaceAll(strings.ReplaceAll(s, "~", "~0"), "/", "~1")
+			}
+			if se.SchemaField == "additionalProperties" {
+				// Reason reads: property "name" is unsupported.
+				if _, rest, ok := strings.Cut(se.Reason, `"`); ok {
+					if name, _, ok := strings.Cut(rest, `"`); ok {
+						p += "/" + strings.ReplaceAll(strings.ReplaceAll(name, "~", "~0"), "/", "~1")
+						fields = append(fields, FieldProblem{Pointer: p, Message: "unknown field"})
+						return
+					}
+				}
+			}
+			fields = append(fields, FieldProblem{Pointer: p, Message: se.Reason})
+			return
+		}
+		var sre *openapi3filter.SecurityRequirementsError
+		if errors.As(e, &sre) {
+			return // authentication is the auth middleware's job
+		}
+		fields = append(fields, FieldProblem{Pointer: "", Message: e.Error()})
+	}
+	add(err)
+	if status == http.StatusBadRequest && len(fields) == 0 {
+		return nil
+	}
+	return &validationError{status: status, detail: detail, fields: fields}
+}

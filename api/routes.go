@@ -1,0 +1,53 @@
+package api
+
+import (
+	"net/http"
+
+	"github.com/labstack/echo/v4"
+	"github.com/prometheus/client_golang/prometheus"
+	"github.com/prometheus/client_golang/prometheus/promhttp"
+
+	"wheelbench/openapi"
+	"wheelbench/service"
+)
+
+// routeTable lists every operation of the spec with its handler, role and
+// body limit. The parity test checks it against openapi.yaml both ways.
+func (s *Server) routeTable(g prometheus.Gatherer) []Route {
+	if g == nil {
+		g = prometheus.NewRegistry()
+	}
+	metricsHandler := echo.WrapHandler(promhttp.HandlerFor(g, promhttp.HandlerOpts{}))
+	return []Route{
+		{Method: http.MethodGet, Path: "/healthz", handler: s.healthz},
+		{Method: http.MethodGet, Path: "/readyz", handler: s.readyz},
+		{Method: http.MethodGet, Path: "/metrics", handler: metricsHandler},
+		{Method: http.MethodGet, Path: "/openapi.yaml", handler: serveOpenAPI},
+
+		{Method: http.MethodGet, Path: "/v1/me", Role: service.RoleRead, handler: s.getMe},
+
+		{Method: http.MethodGet, Path: "/v1/locations", Role: service.RoleRead, handler: s.listLocations},
+		{Method: http.MethodPost, Path: "/v1/locations", Role: service.RoleAdmin, handler: s.createLocation},
+		{Method: http.MethodGet, Path: "/v1/locations/{id}", Role: service.RoleRead, handler: s.getLocation},
+		{Method: http.MethodPatch, Path: "/v1/locations/{id}", Role: service.RoleAdmin, handler: s.updateLocation},
+
+		{Method: http.MethodGet, Path: "/v1/api-keys", Role: service.RoleAdmin, handler: s.listAPIKeys},
+		{Method: http.MethodPost, Path: "/v1/api-keys", Role: service.RoleAdmin, handler: s.createAPIKey},
+		{Method: http.MethodDelete, Path: "/v1/api-keys/{id}", Role: service.RoleAdmin, handler: s.revokeAPIKey},
+	}
+}
+
+func (s *Server) healthz(c echo.Context) error {
+	return c.JSON(http.StatusOK, map[string]string{"status": "ok"})
+}
+
+func (s *Server) readyz(c echo.Context) error {
+	if err := s.svc.Ready(c.Request().Context()); err != nil {
+		return &httpProblem{status: http.StatusServiceUnavailable, detail: "The database does not answer."}
+	}
+	return c.JSON(http.StatusOK, map[string]string{"status": "ok"})
+}
+
+func serveOpenAPI(c echo.Context) error {
+	return c.Blob(http.StatusOK, "application/yaml", openapi.YAML())
+}
