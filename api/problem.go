@@ -225,7 +225,7 @@ func fromSpecError(err error) error {
 			for _, s := range ptr {
 				p += "/" + strings.ReplaceAll(strings.ReplaceAll(s, "~", "~0"), "/", "~1")
 			}
-			if se.SchemaField == "additionalProperties" {
+			if strings.HasPrefix(se.Reason, "property \"") && strings.HasSuffix(se.Reason, "\" is unsupported") {
 				// Reason reads: property "name" is unsupported.
 				if _, rest, ok := strings.Cut(se.Reason, `"`); ok {
 					if name, _, ok := strings.Cut(rest, `"`); ok {

@@ -32,7 +32,8 @@ const DefaultBodyLimit = 1 << 20
 type Config struct {
 	Service *service.Service
 	Logger  *slog.Logger
-	// Registry receives the HTTP metrics; /metrics serves Gatherer. Both may be nil.
+	// Registry receives the HTTP metrics; /metrics serves Gatherer. When both
+	// are nil the server keeps a registry of its own.
 	Registry prometheus.Registerer
 	Gatherer prometheus.Gatherer
 	// RequestTimeout bounds each request's work (default 30 s).
@@ -94,6 +95,10 @@ func New(cfg Config) (*Server, error) {
 	}
 	if cfg.RequestTimeout == 0 {
 		cfg.RequestTimeout = 30 * time.Second
+	}
+	if cfg.Registry == nil && cfg.Gatherer == nil {
+		reg := prometheus.NewRegistry()
+		cfg.Registry, cfg.Gatherer = reg, reg
 	}
 	s := &Server{svc: cfg.Service, log: cfg.Logger, doc: doc, router: router}
 	s.m = newMetrics(cfg.Registry)

@@ -81,4 +81,3 @@ func ensureDatabase(ctx context.Context, cfg *pgx.ConnConfig) error {
 	}
 	return nil
 }
-

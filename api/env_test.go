@@ -1,0 +1,189 @@
+package api_test
+
+import (
+	"bytes"
+	"context"
+	"encoding/json"
+	"io"
+	"net/http"
+	"net/http/httptest"
+	"strings"
+	"testing"
+
+	"github.com/getkin/kin-openapi/openapi3filter"
+	"github.com/getkin/kin-openapi/routers"
+	"github.com/getkin/kin-openapi/routers/legacy"
+	"github.com/google/uuid"
+	"github.com/jackc/pgx/v5/pgxpool"
+
+	"wheelbench/api"
+	"wheelbench/service"
+	"wheelbench/store"
+	"wheelbench/store/storetest"
+)
+
+// env is the real stack over a fresh database, served by httptest.
+type env struct {
+	t      *testing.T
+	srv    *api.Server
+	http   *httptest.Server
+	svc    *service.Service
+	st     *store.Store
+	router routers.Router
+	// keys of organisation A by role, and an admin key of organisation B
+	keyA map[service.Role]string
+	keyB string
+	orgA uuid.UUID
+	orgB uuid.UUID
+}
+
+func newEnv(t *testing.T) *env {
+	t.Helper()
+	return newEnvPool(t, storetest.Pool(t))
+}
+
+func newEnvPool(t *testing.T, pool *pgxpool.Pool) *env {
+	t.Helper()
+	st := store.New(pool)
+	svc := service.New(st, nil)
+	srv, err := api.New(api.Config{Service: svc})
+	if err != nil {
+		t.Fatal(err)
+	}
+	router, err := legacy.NewRouter(srv.Doc())
+	if err != nil {
+		t.Fatal(err)
+	}
+	e := &env{t: t, srv: srv, svc: svc, st: st, router: router, keyA: map[service.Role]string{}}
+	e.http = httptest.NewServer(srv.Handler())
+	t.Cleanup(e.http.Close)
+	ctx := context.Background()
+	oa, ka, err := svc.CreateOrganisation(ctx, "Organisation A (test)")
+	if err != nil {
+		t.Fatal(err)
+	}
+	e.orgA, e.keyA[service.RoleAdmin] = oa.ID, ka.Secret
+	for _, r := range []service.Role{service.RoleRead, service.RoleWrite} {
+		k, err := svc.CreateAPIKey(ctx, oa.ID, service.NewKeyInput{Role: r, Name: string(r)})
+		if err != nil {
+			t.Fatal(err)
+		}
+		e.keyA[r] = k.Secret
+	}
+	ob, kb, err := svc.CreateOrganisation(ctx, "Organisation B (test)")
+	if err != nil {
+		t.Fatal(err)
+	}
+	e.orgB, e.keyB = ob.ID, kb.Secret
+	return e
+}
+
+// response is a finished exchange, already validated against the spec.
+type response struct {
+	*http.Response
+	body []byte
+}
+
+func (r response) json(t *testing.T, v any) {
+	t.Helper()
+	if err := json.Unmarshal(r.body, v); err != nil {
+		t.Fatalf("decode %s: %v\n%s", r.Request.URL.Path, err, r.body)
+	}
+}
+
+// problem decodes a problem+json body.
+func (r response) problem(t *testing.T) api.Problem {
+	t.Helper()
+	if ct := r.Header.Get("Content-Type"); ct != "application/problem+json" {
+		t.Fatalf("%s %s: content type %q, want application/problem+json\n%s", r.Request.Method, r.Request.URL.Path, ct, r.body)
+	}
+	var p api.Problem
+	r.json(t, &p)
+	if p.Status != r.StatusCode {
+		t.Fatalf("problem status %d, response %d", p.Status, r.StatusCode)
+	}
+	return p
+}
+
+// do sends a request with the key (none when empty) and a body: a string
+// is sent as is, anything else as JSON. Every response is validated against
+// the OpenAPI document: status, headers and body.
+func (e *env) do(method, path, key string, body any, hdr ...string) response {
+	e.t.Helper()
+	var rd io.Reader
+	switch b := body.(type) {
+	case nil:
+	case string:
+		rd = strings.NewReader(b)
+	case []byte:
+		rd = bytes.NewReader(b)
+	default:
+		j, err := json.Marshal(b)
+		if err != nil {
+			e.t.Fatal(err)
+		}
+		rd = bytes.NewReader(j)
+	}
+	req, err := http.NewRequest(method, e.http.URL+path, rd)
+	if err != nil {
+		e.t.Fatal(err)
+	}
+	if rd != nil {
+		req.Header.Set("Content-Type", "application/json")
+	}
+	if key != "" {
+		req.Header.Set("Authorization", "Bearer "+key)
+	}
+	for i := 0; i+1 < len(hdr); i += 2 {
+		req.Header.Set(hdr[i], hdr[i+1])
+	}
+	res, err := e.http.Client().Do(req)
+	if err != nil {
+		e.t.Fatal(err)
+	}
+	defer res.Body.Close()
+	b, err := io.ReadAll(res.Body)
+	if err != nil {
+		e.t.Fatal(err)
+	}
+	e.validate(req, res, b)
+	return response{Response: res, body: b}
+}
+
+// validate checks one response against the spec. A route the spec lacks
+// may only answer 404 or 405.
+func (e *env) validate(req *http.Request, res *http.Response, body []byte) {
+	e.t.Helper()
+	vreq := req.Clone(context.Background())
+	vreq.Body = http.NoBody
+	route, params, err := e.router.FindRoute(vreq)
+	if err != nil {
+		if res.StatusCode != http.StatusNotFound && res.StatusCode != http.StatusMethodNotAllowed {
+			e.t.Fatalf("%s %s is not in the spec but answered %d", req.Method, req.URL.Path, res.StatusCode)
+		}
+		if ct := res.Header.Get("Content-Type"); ct != "application/problem+json" {
+			e.t.Fatalf("%s %s: %d with content type %q", req.Method, req.URL.Path, res.StatusCode, ct)
+		}
+		return
+	}
+	in := &openapi3filter.ResponseValidationInput{
+		RequestValidationInput: &openapi3filter.RequestValidationInput{Request: vreq, PathParams: params, Route: route,
+			Options: &openapi3filter.Options{AuthenticationFunc: openapi3filter.NoopAuthenticationFunc}},
+		Status: res.StatusCode,
+		Header: res.Header,
+		Options: &openapi3filter.Options{IncludeResponseStatus: true, MultiError: true,
+			AuthenticationFunc: openapi3filter.NoopAuthenticationFunc},
+	}
+	in.SetBodyBytes(body)
+	if err := openapi3filter.ValidateResponse(context.Background(), in); err != nil {
+		e.t.Fatalf("%s %s → %d does not match the spec: %v\nbody: %.2000s", req.Method, req.URL.Path, res.StatusCode, err, body)
+	}
+}
+
+func (e *env) want(r response, status int) response {
+	e.t.Helper()
+	if r.StatusCode != status {
+		e.t.Fatalf("%s %s: status %d, want %d\n%s", r.Request.Method, r.Request.URL.Path, r.StatusCode, status, r.body)
+	}
+	return r
+}

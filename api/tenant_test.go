@@ -1,0 +1,66 @@
+package api_test
+
+import (
+	"strings"
+	"testing"
+
+	"github.com/google/uuid"
+
+	"wheelbench/service"
+)
+
+// fixture creates a resource of organisation A for a route with {id} and
+// returns its id and a valid body for the route's method (nil for none).
+type fixture func(e *env) (id uuid.UUID, body any)
+
+// fixtures is keyed by "METHOD path". Every route with an {id} must have
+// one: TestOtherOrganisationsIDs fails for a route that lacks it.
+var fixtures = map[string]fixture{
+	"GET /v1/locations/{id}":   locationFixture(nil),
+	"PATCH /v1/locations/{id}": locationFixture(map[string]any{"name": "renamed"}),
+	"DELETE /v1/api-keys/{id}": func(e *env) (uuid.UUID, any) {
+		k, err := e.svc.CreateAPIKey(e.t.Context(), e.orgA, service.NewKeyInput{Role: service.RoleRead})
+		if err != nil {
+			e.t.Fatal(err)
+		}
+		return k.ID, nil
+	},
+}
+
+func locationFixture(body any) fixture {
+	return func(e *env) (uuid.UUID, any) {
+		var l struct{ ID uuid.UUID }
+		e.want(e.do("POST", "/v1/locations", e.keyA[service.RoleAdmin], map[string]any{"name": "A's bench"}), 201).json(e.t, &l)
+		return l.ID, body
+	}
+}
+
+// TestOtherOrganisationsIDs: for every route that takes an id, organisation
+// B's admin key gets 404 for organisation A's resource — reads and writes —
+// and the resource is unchanged afterwards.
+func TestOtherOrganisationsIDs(t *testing.T) {
+	e := newEnv(t)
+	for _, r := range e.srv.Routes() {
+		if !strings.Contains(r.Path, "{id}") {
+			continue
+		}
+		key := r.Method + " " + r.Path
+		t.Run(key, func(t *testing.T) {
+			f, ok := fixtures[key]
+			if !ok {
+				t.Fatalf("no tenant-isolation fixture for %s: add one to fixtures", key)
+			}
+			id, body := f(e)
+			path := strings.Replace(r.Path, "{id}", id.String(), 1)
+			res := e.do(r.Method, path, e.keyB, body, "If-Match", "*")
+			e.want(res, 404).problem(t)
+			// And a random id is 404 for A as well.
+			res = e.do(r.Method, strings.Replace(r.Path, "{id}", uuid.NewString(), 1), e.keyA[service.RoleAdmin], body, "If-Match", "*")
+			e.want(res, 404)
+			// The resource still works for its owner.
+			if r.Method == "GET" {
+				e.want(e.do("GET", path, e.keyA[service.RoleAdmin], nil), 200)
+			}
+		})
+	}
+}
