@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"slices"
+	"strings"
 )
 
 // Check validates in (FieldErrors as Validate returns them), checks g
@@ -105,7 +106,7 @@ func Check(in Input, g Geometry, opt Options) (Report, error) {
 		cautions = append(cautions, "Tandem and cargo wheels carry far more load than a solo bicycle's: confirm the hub, rim and spoke makers rate their parts for the load.")
 	}
 	if a := assumedInUse(fs); len(a) > 0 {
-		cautions = append(cautions, fmt.Sprintf("Some warnings and errors rest on typical values, not measurements (%v): measure those parts to confirm.", a))
+		cautions = append(cautions, fmt.Sprintf("Some warnings and errors rest on typical values, not measurements (%s): measure those parts to confirm.", strings.Join(a, ", ")))
 	}
 
 	rep := Report{

@@ -145,7 +145,7 @@ func checkFlange(in Input, p parts, side string, f Flange, opt Options) ([]Findi
 				f.HoleDiameterMM, side, clearance, p.spokeDiameterMM, opt.LooseHoleClearanceMM),
 			Remedy: "Prefer a thicker spoke that suits the hole, or washers whose bore fits the spoke under the heads; check the elbows after the first rides.",
 			Values: map[string]float64{
-				"hole_diameter_mm": f.HoleDiameterMM, "spoke_diameter_mm": p.spokeDiameterMM,
+				"hole_diameter_mm": f.HoleDiameterMM, "spoke_diameter_mm": round4(p.spokeDiameterMM),
 				"clearance_mm": round4(clearance), "max_clearance_mm": opt.LooseHoleClearanceMM,
 			},
 		})
@@ -164,7 +164,11 @@ func checkFlange(in Input, p parts, side string, f Flange, opt Options) ([]Findi
 			FixedByChange: planned,
 		}
 		if planned {
-			fd.Remedy = "Fit " + stackText + fmt.Sprintf("; %.3g mm of gap remains.", round4(plan.residual))
+			if plan.residual >= 0 {
+				fd.Remedy = "Fit " + stackText + fmt.Sprintf("; %.3g mm of gap remains, within tolerance.", round4(plan.residual))
+			} else {
+				fd.Remedy = "Fit " + stackText + fmt.Sprintf("; the stack is %.3g mm thicker than the gap, within tolerance.", round4(-plan.residual))
+			}
 			fd.Values["stack_mm"] = round4(float64(plan.n) * plan.w.thicknessMM)
 		} else {
 			fd.Remedy = fmt.Sprintf("No stack of at most %d washers closes a %.3g mm gap; use spokes with an elbow for a %.4g mm flange.",
