@@ -67,14 +67,14 @@ func (g Geometry) validate() error {
 		g    SideGeometry
 	}{{"left", g.Left}, {"right", g.Right}} {
 		sg := s.g
-		if !finite(sg.LengthMM) || sg.LengthMM <= 0 {
-			return fmt.Errorf("%w: %s length_mm %v must be positive and finite", ErrGeometry, s.side, sg.LengthMM)
+		if !finite(sg.LengthMM) || sg.LengthMM <= 0 || sg.LengthMM > maxRimMM {
+			return fmt.Errorf("%w: %s length_mm %v must be positive, finite, at most %g", ErrGeometry, s.side, sg.LengthMM, maxRimMM)
 		}
-		if sg.StockLengthMM != nil && (!finite(*sg.StockLengthMM) || *sg.StockLengthMM <= 0) {
-			return fmt.Errorf("%w: %s stock_length_mm must be positive and finite", ErrGeometry, s.side)
+		if sg.StockLengthMM != nil && (!finite(*sg.StockLengthMM) || *sg.StockLengthMM <= 0 || *sg.StockLengthMM > maxRimMM) {
+			return fmt.Errorf("%w: %s stock_length_mm must be positive, finite, at most %g", ErrGeometry, s.side, maxRimMM)
 		}
-		if sg.SpokeEndMM != nil && !finite(*sg.SpokeEndMM) {
-			return fmt.Errorf("%w: %s spoke_end_mm must be finite", ErrGeometry, s.side)
+		if sg.SpokeEndMM != nil && (!finite(*sg.SpokeEndMM) || math.Abs(*sg.SpokeEndMM) > maxRimMM) {
+			return fmt.Errorf("%w: %s spoke_end_mm must be finite, at most %g either way", ErrGeometry, s.side, maxRimMM)
 		}
 		if sg.MaxCrosses < 0 {
 			return fmt.Errorf("%w: %s max_crosses must not be negative", ErrGeometry, s.side)
