@@ -146,8 +146,8 @@ func resolveParts(in Input) (parts, error) {
 	return p, nil
 }
 
-// assumedOf returns, sorted, those of paths that were filled with typical
-// values.
+// assumedOf returns, in the order given, those of paths that were filled
+// with typical values.
 func (p parts) assumedOf(paths ...string) []string {
 	var out []string
 	for _, k := range paths {
