@@ -1,0 +1,51 @@
+package fit
+
+import (
+	"strconv"
+	"testing"
+)
+
+// TestWidthGuidance checks the tyre/rim width constants and default bands
+// against testdata/reference/rim_tyre_width.tsv (ISO 5775 article, A; CTC
+// guidance, B).
+func TestWidthGuidance(t *testing.T) {
+	ref := map[string]float64{}
+	for _, r := range readTSV(t, "../../testdata/reference/rim_tyre_width.tsv") {
+		v, err := strconv.ParseFloat(r[1], 64)
+		if err != nil {
+			t.Fatal(err)
+		}
+		ref[r[0]] = v
+	}
+	o := DefaultOptions()
+	got := map[string]float64{
+		"narrow_tyre_rim_fraction": narrowTyreRimFraction,
+		"wide_tyre_rim_fraction":   wideTyreRimFraction,
+		"narrow_tyre_limit_mm":     narrowTyreLimitMM,
+		"ratio_acceptable_min":     o.TyreRimRatioRecommended[0],
+		"ratio_acceptable_max":     o.TyreRimRatioRecommended[1],
+	}
+	for k, v := range got {
+		if ref[k] != v {
+			t.Errorf("%s = %v, reference %v", k, v, ref[k])
+		}
+	}
+	// The ideal 1.8 lies inside the band (CTC guidance).
+	if r := ref["ratio_ideal"]; r < o.TyreRimRatioRecommended[0] || r > o.TyreRimRatioRecommended[1] {
+		t.Errorf("ideal ratio %v outside the band", r)
+	}
+	if err := o.validate(); err != nil {
+		t.Errorf("defaults invalid: %v", err)
+	}
+}
+
+// TestStressArea: π/4 (d − 0.9382 P)² for 2.0 mm × 56 TPI (ISO 898-1 stress
+// area formula, P = 25.4/56 mm exactly) = 1.946940819 mm², computed with
+// Python; the body π·2²/4 = 3.14159 mm² (BS 3737 / sections.tsv) is larger,
+// so the thread governs.
+func TestStressArea(t *testing.T) {
+	a, err := stressAreaMM2(parts{spokeDiameterMM: 2, threadDiameterMM: 2, threadTPI: 56})
+	if err != nil || a < 1.946940818 || a > 1.946940820 {
+		t.Errorf("stress area %v, %v", a, err)
+	}
+}
