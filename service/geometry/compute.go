@@ -186,7 +186,7 @@ func sideResult(g sideGeom, length float64) SideResult {
 		LengthMM:        length,
 		BracingAngleDeg: g.bracingDeg(),
 		NippleAngleDeg:  g.nipple(),
-		HubAngleDeg:     g.alpha * deg,
+		HubAngleDeg:     g.alphaDeg,
 		MaxCrosses:      g.maxCrosses,
 	}
 }
@@ -203,7 +203,7 @@ func (l *errList) feasible(p string, n, crosses int, g sideGeom) {
 	}
 	if crosses > g.maxCrosses {
 		l.impossible(p, fmt.Sprintf("%d crosses would make the spoke leave the flange past the tangent (hub angle %.1f° > %.1f° = arccos(r/R)): at most %d crosses for this geometry",
-			crosses, g.alpha*deg, g.limit*deg, g.maxCrosses))
+			crosses, g.alphaDeg, g.limit*deg, g.maxCrosses))
 	}
 }
 

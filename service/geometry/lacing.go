@@ -9,6 +9,8 @@ type sideGeom struct {
 	// alpha is the in-plane angle, seen from the axle, between a spoke's hub
 	// hole and its rim hole: crosses × 720° / spoke count, in radians.
 	alpha float64
+	// alphaDeg is alpha in degrees, computed exactly as crosses × 720 / n.
+	alphaDeg float64
 	// x, y are the in-plane components of the rim hole → hub hole vector in
 	// the rim hole's frame: x along the inward radius, y tangential.
 	x, y float64
@@ -31,6 +33,7 @@ func lacingSide(n int, rimR float64, s *side) sideGeom {
 	var g sideGeom
 	step := 4 * math.Pi / float64(n) // angle between neighbouring holes of one flange
 	g.alpha = float64(s.crosses) * step
+	g.alphaDeg = float64(s.crosses) * 720 / float64(n)
 	ratio := s.r / rimR // 0 < ratio < 1 after validation
 	g.limit = math.Acos(ratio)
 	if n%4 == 0 {
