@@ -306,7 +306,7 @@ func TestStock(t *testing.T) {
 		t.Fatal(err)
 	}
 	const e = 193000.0 // N/mm², stainless steel (materials.tsv: 193 GPa)
-	a := math.Pi      // mm², d = 2 mm
+	a := math.Pi       // mm², d = 2 mm
 	for _, s := range []SideResult{res.Left, res.Right} {
 		order, stock, end, tension := *s.OrderLengthMM, *s.StockLengthMM, *s.SpokeEndMM, *s.TensionN
 		// nearest of the list, by brute force over the list
