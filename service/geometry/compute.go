@@ -112,9 +112,9 @@ func compute(w *Wheel, o *Options) (Result, error) {
 	res.Right = sideResult(gr, lenR)
 
 	// Optional outputs point into one backing array, allocated only when needed.
-	var opt *[8]float64
+	var opt *[2]sideOpt
 	if r.target > 0 || r.stock != nil {
-		opt = new([8]float64)
+		opt = new([2]sideOpt)
 	}
 	var tL, tR float64
 	if r.target > 0 {
@@ -125,52 +125,12 @@ func compute(w *Wheel, o *Options) (Result, error) {
 		} else {
 			tL, tR = r.target*sR/sL, r.target
 		}
-		opt[0], opt[1] = tL, tR
-		res.Left.TensionN, res.Right.TensionN = &opt[0], &opt[1]
+		opt[0].tension, opt[1].tension = tL, tR
+		res.Left.TensionN, res.Right.TensionN = &opt[0].tension, &opt[1].tension
 	}
-	for i, s := range [2]struct {
-		out    *SideResult
-		length float64
-		t      float64
-		name   string
-	}{{&res.Left, lenL, tL, "left"}, {&res.Right, lenR, tR, "right"}} {
-		want := s.length
-		var wr wire
-		hasStretch := r.hasSpoke && s.t > 0
-		if hasStretch {
-			wr = newWire(s.t, r.eNmm2, r.d, r.sections)
-			want = wr.unloadedMM(s.length)
-			if want <= wr.buttLen {
-				l.impossible("/spoke/sections", "the butted sections ("+fmtMM(wr.buttLen)+") are longer than the "+s.name+" spoke ("+fmtMM(want)+")")
-				continue
-			}
-			opt[2+i] = want
-			s.out.OrderLengthMM = &opt[2+i]
-			if stress := s.t / wr.minArea; stress > o.MaxStressFraction*r.utsMPa {
-				res.add(CodeSpokeStressHigh, SeverityWarning, s.name, fmt.Sprintf(
-					"at %.0f N the thinnest section carries %.0f MPa, more than %.0f %% of the material's %.0f MPa tensile strength",
-					s.t, stress, 100*o.MaxStressFraction, r.utsMPa))
-				res.caution("The spoke stress is high for its material: use a thicker or stronger spoke or a lower tension; a spoke that breaks under load can collapse the wheel.")
-			}
-		}
-		if r.stock != nil {
-			stock := chooseStock(r.stock, want)
-			end := stock - s.length
-			if hasStretch {
-				end = stock + wr.stretchMM(stock) - s.length
-			}
-			opt[4+i], opt[6+i] = stock, end
-			s.out.StockLengthMM, s.out.SpokeEndMM = &opt[4+i], &opt[6+i]
-			switch {
-			case end > o.StockEndLongMM:
-				res.add(CodeStockEndLong, SeverityWarning, s.name, fmt.Sprintf(
-					"the %.1f mm stock spoke ends %.2f mm past the ERD level: it may bottom in the nipple before reaching tension", stock, end))
-			case end < -o.StockEndShortMM:
-				res.add(CodeStockEndShort, SeverityWarning, s.name, fmt.Sprintf(
-					"the %.1f mm stock spoke ends %.2f mm short of the ERD level: fewer threads are engaged in the nipple", stock, -end))
-				res.caution("A spoke that ends well short of the nipple head engages fewer threads and can strip or pull through; choose a longer spoke.")
-			}
-		}
+	if opt != nil {
+		res.orderAndStock(&l, o, &r, &res.Left, &opt[0], lenL, tL, "left")
+		res.orderAndStock(&l, o, &r, &res.Right, &opt[1], lenR, tR, "right")
 	}
 	if err := l.err(); err != nil {
 		return Result{}, err
@@ -179,6 +139,52 @@ func compute(w *Wheel, o *Options) (Result, error) {
 	res.sideFindings(o, &r, &r.right, gr, "right")
 	res.balanceFindings(o, w, tL, tR)
 	return res, nil
+}
+
+// sideOpt backs one side's optional outputs.
+type sideOpt struct{ tension, order, stock, end float64 }
+
+// orderAndStock fills a side's order length (Hooke's law at tension t when
+// the spoke is known) and its stock choice, with their findings.
+func (res *Result) orderAndStock(l *errList, o *Options, r *resolved, out *SideResult, opt *sideOpt, length, t float64, name string) {
+	want := length
+	var wr wire
+	hasStretch := r.hasSpoke && t > 0
+	if hasStretch {
+		wr = newWire(t, r.eNmm2, r.d, r.sections)
+		want = wr.unloadedMM(length)
+		if want <= wr.buttLen {
+			l.impossible("/spoke/sections", "the butted sections ("+fmtMM(wr.buttLen)+") are longer than the "+name+" spoke ("+fmtMM(want)+")")
+			return
+		}
+		opt.order = want
+		out.OrderLengthMM = &opt.order
+		if stress := t / wr.minArea; stress > o.MaxStressFraction*r.utsMPa {
+			res.add(CodeSpokeStressHigh, SeverityWarning, name, fmt.Sprintf(
+				"at %.0f N the thinnest section carries %.0f MPa, more than %.0f %% of the material's %.0f MPa tensile strength",
+				t, stress, 100*o.MaxStressFraction, r.utsMPa))
+			res.caution("The spoke stress is high for its material: use a thicker or stronger spoke or a lower tension; a spoke that breaks under load can collapse the wheel.")
+		}
+	}
+	if r.stock == nil {
+		return
+	}
+	stock := chooseStock(r.stock, want)
+	end := stock - length
+	if hasStretch {
+		end = stock + wr.stretchMM(stock) - length
+	}
+	opt.stock, opt.end = stock, end
+	out.StockLengthMM, out.SpokeEndMM = &opt.stock, &opt.end
+	switch {
+	case end > o.StockEndLongMM:
+		res.add(CodeStockEndLong, SeverityWarning, name, fmt.Sprintf(
+			"the %.1f mm stock spoke ends %.2f mm past the ERD level: it may bottom in the nipple before reaching tension", stock, end))
+	case end < -o.StockEndShortMM:
+		res.add(CodeStockEndShort, SeverityWarning, name, fmt.Sprintf(
+			"the %.1f mm stock spoke ends %.2f mm short of the ERD level: fewer threads are engaged in the nipple", stock, -end))
+		res.caution("A spoke that ends well short of the nipple head engages fewer threads and can strip or pull through; choose a longer spoke.")
+	}
 }
 
 func sideResult(g sideGeom, length float64) SideResult {

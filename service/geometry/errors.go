@@ -32,6 +32,11 @@ func (l *errList) bad(pointer, msg string) {
 	*l = append(*l, &FieldError{Pointer: pointer, Message: msg})
 }
 
+// at joins a pointer prefix and leaf. Callers on the success path pass the
+// parts instead of a joined pointer so that nothing is built unless an
+// error is reported.
+func at(prefix, leaf string) string { return prefix + leaf }
+
 func (l *errList) impossible(pointer, msg string) {
 	*l = append(*l, &FieldError{Pointer: pointer, Message: msg, Unprocessable: true})
 }

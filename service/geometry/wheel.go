@@ -171,31 +171,31 @@ type resolved struct {
 
 func finite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
 
-// size checks a required positive size.
-func (l *errList) size(p string, v float64) bool {
+// size checks a required positive size at pointer prefix+leaf.
+func (l *errList) size(prefix, leaf string, v float64) bool {
 	if !finite(v) || v <= 0 {
-		l.bad(p, "must be a positive, finite number of mm")
+		l.bad(at(prefix, leaf), "must be a positive, finite number of mm")
 		return false
 	}
 	if v > maxSizeMM {
-		l.bad(p, "must be at most "+fmtMM(maxSizeMM))
+		l.bad(at(prefix, leaf), "must be at most "+fmtMM(maxSizeMM))
 		return false
 	}
 	return true
 }
 
 // signed checks a finite length that may be zero or negative.
-func (l *errList) signed(p string, v float64) bool {
+func (l *errList) signed(prefix, leaf string, v float64) bool {
 	if !finite(v) || math.Abs(v) > maxSizeMM {
-		l.bad(p, "must be a finite number of mm within ±"+fmtMM(maxSizeMM))
+		l.bad(at(prefix, leaf), "must be a finite number of mm within ±"+fmtMM(maxSizeMM))
 		return false
 	}
 	return true
 }
 
 func (l *errList) flange(p string, f Flange, straight bool, def float64, s *side) {
-	okR := l.size(p+"/pcd_mm", f.PCDMM)
-	okZ := l.size(p+"/center_to_flange_mm", f.CenterToFlangeMM)
+	okR := l.size(p, "/pcd_mm", f.PCDMM)
+	okZ := l.size(p, "/center_to_flange_mm", f.CenterToFlangeMM)
 	if okR {
 		s.r = f.PCDMM / 2
 	}
@@ -205,18 +205,18 @@ func (l *errList) flange(p string, f Flange, straight bool, def float64, s *side
 	s.hole = def
 	s.assumedHole = !straight
 	if f.HoleDiameterMM != nil {
-		if l.size(p+"/hole_diameter_mm", *f.HoleDiameterMM) {
+		if l.size(p, "/hole_diameter_mm", *f.HoleDiameterMM) {
 			s.hole = *f.HoleDiameterMM
 			s.assumedHole = false
 		}
 	}
-	if f.ThicknessMM != nil && l.size(p+"/thickness_mm", *f.ThicknessMM) {
+	if f.ThicknessMM != nil && l.size(p, "/thickness_mm", *f.ThicknessMM) {
 		s.thickness = *f.ThicknessMM
 	}
 	if f.SpokeExitOffsetMM != nil {
 		if !straight {
-			l.bad(p+"/spoke_exit_offset_mm", "applies to straight_pull hubs only")
-		} else if l.signed(p+"/spoke_exit_offset_mm", *f.SpokeExitOffsetMM) {
+			l.bad(at(p, "/spoke_exit_offset_mm"), "applies to straight_pull hubs only")
+		} else if l.signed(p, "/spoke_exit_offset_mm", *f.SpokeExitOffsetMM) {
 			s.exit = *f.SpokeExitOffsetMM
 		}
 	}
@@ -262,10 +262,10 @@ func resolve(w *Wheel, o *Options) (resolved, error) {
 	l.flange("/hub/right", w.Hub.Right, r.straight, o.DefaultHoleDiameterMM, &r.right)
 	r.right.z = -r.right.z
 
-	okERD := l.size("/rim/erd_mm", w.Rim.ERDMM)
-	okOff := l.signed("/rim/spoke_hole_offset_mm", w.Rim.SpokeHoleOffsetMM)
-	okSL := l.signed("/rim/stagger_mm/left", w.Rim.StaggerMM.Left)
-	okSR := l.signed("/rim/stagger_mm/right", w.Rim.StaggerMM.Right)
+	okERD := l.size("/rim/erd_mm", "", w.Rim.ERDMM)
+	okOff := l.signed("/rim/spoke_hole_offset_mm", "", w.Rim.SpokeHoleOffsetMM)
+	okSL := l.signed("/rim/stagger_mm/left", "", w.Rim.StaggerMM.Left)
+	okSR := l.signed("/rim/stagger_mm/right", "", w.Rim.StaggerMM.Right)
 	washer := w.Rim.NippleWasherMM
 	okW := finite(washer) && washer >= 0 && washer <= maxSizeMM
 	if !okW {
@@ -302,19 +302,22 @@ func resolve(w *Wheel, o *Options) (resolved, error) {
 			r.target = *t
 		}
 	}
-	for _, f := range [...]struct {
-		p string
-		s *side
-	}{{"/hub/left/hole_diameter_mm", &r.left}, {"/hub/right/hole_diameter_mm", &r.right}} {
-		if !r.straight && r.d > 0 && !f.s.assumedHole && f.s.hole < r.d {
-			l.impossible(f.p, "is smaller than the spoke ("+fmtMM(r.d)+"): the spoke cannot pass")
-		}
+	if !r.straight && r.d > 0 {
+		l.holeFits("/hub/left/hole_diameter_mm", r.left, r.d)
+		l.holeFits("/hub/right/hole_diameter_mm", r.right, r.d)
 	}
 	if s := w.Stock; s != nil {
 		l.stock(s)
 		r.stock = s
 	}
 	return r, l.err()
+}
+
+// holeFits rejects a measured J-bend hole the spoke cannot pass through.
+func (l *errList) holeFits(p string, s side, d float64) {
+	if !s.assumedHole && s.hole < d {
+		l.impossible(p, "is smaller than the spoke ("+fmtMM(d)+"): the spoke cannot pass")
+	}
 }
 
 func (l *errList) spoke(sp *Spoke, o *Options, r *resolved) {
@@ -326,7 +329,7 @@ func (l *errList) spoke(sp *Spoke, o *Options, r *resolved) {
 	case sp.DiameterMM != nil && sp.Gauge != nil:
 		l.bad("/spoke/gauge", "give diameter_mm or gauge, not both")
 	case sp.DiameterMM != nil:
-		if l.size("/spoke/diameter_mm", *sp.DiameterMM) {
+		if l.size("/spoke/diameter_mm", "", *sp.DiameterMM) {
 			r.d = *sp.DiameterMM
 		}
 	case sp.Gauge != nil:
@@ -357,14 +360,16 @@ func (l *errList) spoke(sp *Spoke, o *Options, r *resolved) {
 		l.bad("/spoke/sections", "at most "+strconv.Itoa(maxSections)+" butted sections")
 	} else {
 		for i, s := range sp.Sections {
-			p := "/spoke/sections/" + strconv.Itoa(i)
-			l.size(p+"/length_mm", s.LengthMM)
-			l.size(p+"/diameter_mm", s.DiameterMM)
+			if !finite(s.LengthMM) || !finite(s.DiameterMM) || s.LengthMM <= 0 || s.DiameterMM <= 0 || s.LengthMM > maxSizeMM || s.DiameterMM > maxSizeMM {
+				p := "/spoke/sections/" + strconv.Itoa(i)
+				l.size(p, "/length_mm", s.LengthMM)
+				l.size(p, "/diameter_mm", s.DiameterMM)
+			}
 		}
 		r.sections = sp.Sections
 	}
 	if sp.HeadDiameterMM != nil {
-		if l.size("/spoke/head_diameter_mm", *sp.HeadDiameterMM) {
+		if l.size("/spoke/head_diameter_mm", "", *sp.HeadDiameterMM) {
 			r.headD = *sp.HeadDiameterMM
 		}
 	} else if r.d > 0 {
@@ -381,14 +386,16 @@ func (l *errList) stock(s *Stock) {
 	case s.IncrementMM != nil && len(s.LengthsMM) > 0:
 		l.bad("/stock", "give increment_mm or lengths_mm, not both")
 	case s.IncrementMM != nil:
-		if l.size("/stock/increment_mm", *s.IncrementMM) && *s.IncrementMM < minIncrementMM {
+		if l.size("/stock/increment_mm", "", *s.IncrementMM) && *s.IncrementMM < minIncrementMM {
 			l.bad("/stock/increment_mm", "must be at least "+fmtMM(minIncrementMM))
 		}
 	case len(s.LengthsMM) > maxStockList:
 		l.bad("/stock/lengths_mm", "at most "+strconv.Itoa(maxStockList)+" lengths")
 	case len(s.LengthsMM) > 0:
 		for i, v := range s.LengthsMM {
-			l.size("/stock/lengths_mm/"+strconv.Itoa(i), v)
+			if !finite(v) || v <= 0 || v > maxSizeMM {
+				l.size("/stock/lengths_mm/", strconv.Itoa(i), v)
+			}
 		}
 	default:
 		l.bad("/stock", "needs increment_mm or a non-empty lengths_mm")
