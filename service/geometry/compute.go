@@ -280,17 +280,16 @@ func (res *Result) balanceFindings(o *Options, w *Wheel, tL, tR float64) {
 			res.caution("The low-tension side is below a safe minimum: its nipples can unwind and its spokes go slack under load; raise the target within the rim's limit.")
 		}
 	}
-	torqueL := w.Hub.DiscBrake || w.Hub.Motor
-	torqueR := w.Hub.Driven || w.Hub.Motor
-	if w.Hub.DiscBrake && res.Left.HubAngleDeg == 0 {
+	radialL, radialR := res.Left.HubAngleDeg == 0, res.Right.HubAngleDeg == 0
+	if w.Hub.DiscBrake && radialL {
 		res.add(CodeRadialDiscSide, SeverityWarning, "left", "the rotor side is laced radially: radial spokes cannot carry braking torque")
 		res.caution("Radial spokes on the disc side cannot carry braking torque from the rotor; lace the rotor side crossed.")
 	}
-	if w.Hub.Motor && torqueL && res.Left.HubAngleDeg == 0 && !w.Hub.DiscBrake {
+	if w.Hub.Motor && radialL && !w.Hub.DiscBrake {
 		res.add(CodeRadialDriveSide, SeverityWarning, "left", "a motor hub's left side is laced radially: radial spokes cannot carry drive torque")
 		res.caution("Radial spokes cannot carry drive torque; lace torque-carrying sides crossed.")
 	}
-	if torqueR && res.Right.HubAngleDeg == 0 {
+	if (w.Hub.Driven || w.Hub.Motor) && radialR {
 		res.add(CodeRadialDriveSide, SeverityWarning, "right", "the drive side is laced radially: radial spokes cannot carry drive torque")
 		res.caution("Radial spokes cannot carry drive torque; lace torque-carrying sides crossed.")
 	}
