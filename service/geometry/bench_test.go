@@ -7,7 +7,7 @@ var sink Result
 // BenchmarkCompute: one wheel (the contract example: 32 holes, 3-cross,
 // spoke, target tension and stock), both sides. Budget: 1 µs.
 func BenchmarkCompute(b *testing.B) {
-	w := issueWheel()
+	w := contractWheel()
 	b.ReportAllocs()
 	for b.Loop() {
 		r, err := Compute(w)
@@ -21,7 +21,7 @@ func BenchmarkCompute(b *testing.B) {
 // BenchmarkComputeGeometryOnly: the required inputs only (no optional
 // outputs, so nothing to allocate).
 func BenchmarkComputeGeometryOnly(b *testing.B) {
-	w := issueWheel()
+	w := contractWheel()
 	w.Spoke, w.TargetTensionN, w.Stock = nil, nil, nil
 	b.ReportAllocs()
 	for b.Loop() {

@@ -177,7 +177,7 @@ func TestValidation(t *testing.T) {
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
-			w := issueWheel()
+			w := contractWheel()
 			c.mod(&w)
 			res, err := Compute(w)
 			if err == nil {
@@ -195,7 +195,7 @@ func TestValidation(t *testing.T) {
 
 // TestSeveralErrorsJoined: every bad field is reported, not just the first.
 func TestSeveralErrorsJoined(t *testing.T) {
-	w := issueWheel()
+	w := contractWheel()
 	w.Hub.Left.PCDMM = -1
 	w.Rim.ERDMM = math.NaN()
 	w.Crosses.Right = nil
@@ -226,7 +226,7 @@ func TestDecodeContractExample(t *testing.T) {
 	if err := json.Unmarshal([]byte(body), &w); err != nil {
 		t.Fatal(err)
 	}
-	if diff := cmp.Diff(issueWheel(), w); diff != "" {
+	if diff := cmp.Diff(contractWheel(), w); diff != "" {
 		t.Fatalf("decoded wheel (-want +got):\n%s", diff)
 	}
 	res, err := Compute(w)
@@ -283,7 +283,7 @@ func mustJSON(t *testing.T, v any) []byte {
 // TestGaugeInput: gauge 14 is 0.080 in = 2.032 mm (BS 3737, testdata/
 // reference/swg.tsv); the order length then follows Hooke's law at 2.032 mm.
 func TestGaugeInput(t *testing.T) {
-	a, b := issueWheel(), issueWheel()
+	a, b := contractWheel(), contractWheel()
 	a.Spoke = &Spoke{Gauge: ip(14)}
 	b.Spoke = &Spoke{DiameterMM: fp(0.080 * 25.4)}
 	ra, err := Compute(a)
@@ -299,7 +299,7 @@ func TestGaugeInput(t *testing.T) {
 // TestStock: nearest stock length and the spoke end, from the definitions:
 // end = stock + Hooke stretch(stock) − loaded length.
 func TestStock(t *testing.T) {
-	w := issueWheel()
+	w := contractWheel()
 	w.Stock = &Stock{LengthsMM: []float64{288, 290, 291, 294}}
 	res, err := Compute(w)
 	if err != nil {

@@ -47,7 +47,7 @@ func TestHeadOverlap(t *testing.T) {
 // nor a radial drive side pedalling torque (statics: a radial spoke has no
 // tangential component at the hub).
 func TestTorqueSides(t *testing.T) {
-	w := issueWheel()
+	w := contractWheel()
 	w.Hub.DiscBrake = true
 	w.Crosses = cross(0, 3)
 	res, err := Compute(w)
@@ -81,7 +81,7 @@ func TestTorqueSides(t *testing.T) {
 // beyond 2:1 and, at 1000 N, a left side near 1000·(12/291)/(36/293) ≈ 336 N
 // below 500 N — each with its caution.
 func TestDishFindings(t *testing.T) {
-	w := issueWheel()
+	w := contractWheel()
 	w.Hub.Right.CenterToFlangeMM = 12
 	w.TargetTensionN = fp(1000)
 	res, err := Compute(w)
@@ -99,7 +99,7 @@ func TestDishFindings(t *testing.T) {
 		t.Errorf("want cautions for the slack side, got %q", res.Cautions)
 	}
 	// The contract example (18.5 mm) stays clear of all three.
-	res, _ = Compute(issueWheel())
+	res, _ = Compute(contractWheel())
 	for _, code := range []string{CodeLowBracingAngle, CodeTensionRatioHigh, CodeLowSideTension} {
 		for _, f := range res.Findings {
 			if f.Code == code {
@@ -109,7 +109,7 @@ func TestDishFindings(t *testing.T) {
 	}
 	// Options move the thresholds.
 	o := Options{MaxTensionRatio: 1.5, MinBracingAngleDeg: 4}
-	res, _ = o.Compute(issueWheel())
+	res, _ = o.Compute(contractWheel())
 	if !hasCode(res, CodeTensionRatioHigh, "") || !hasCode(res, CodeLowBracingAngle, "right") {
 		t.Errorf("stricter options: want tension_ratio_high and low_bracing_angle, got %+v", res.Findings)
 	}
@@ -120,7 +120,7 @@ func TestDishFindings(t *testing.T) {
 // does not (350 < 848). A 20 mm offset-free hub on a small rim sends the
 // spoke in at more than 10° to the radius.
 func TestStressAndNipple(t *testing.T) {
-	w := issueWheel()
+	w := contractWheel()
 	w.Spoke.Material = "aluminium"
 	res, err := Compute(w)
 	if err != nil {
@@ -129,11 +129,11 @@ func TestStressAndNipple(t *testing.T) {
 	if !hasCode(res, CodeSpokeStressHigh, "right") || len(res.Cautions) == 0 {
 		t.Errorf("aluminium at 1100 N: want spoke_stress_high with a caution, got %+v", res.Findings)
 	}
-	res, _ = Compute(issueWheel())
+	res, _ = Compute(contractWheel())
 	if hasCode(res, CodeSpokeStressHigh, "right") {
 		t.Errorf("steel at 1100 N: unexpected spoke_stress_high")
 	}
-	w = issueWheel()
+	w = contractWheel()
 	w.Rim.ERDMM = 300
 	w.Crosses = cross(2, 2)
 	res, err = Compute(w)
@@ -149,7 +149,7 @@ func TestStressAndNipple(t *testing.T) {
 // TestHoleFindings: no hole given → the default is assumed and said; a
 // 3.2 mm hole for a 2.0 mm spoke is loose (1.2 mm > 0.8 mm).
 func TestHoleFindings(t *testing.T) {
-	w := issueWheel()
+	w := contractWheel()
 	w.Hub.Left.HoleDiameterMM = nil
 	w.Hub.Right.HoleDiameterMM = fp(3.2)
 	res, err := Compute(w)

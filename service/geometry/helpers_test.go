@@ -12,9 +12,9 @@ func fp(v float64) *float64       { return &v }
 func cross(l, r int) Cross        { return Cross{Left: ip(l), Right: ip(r)} }
 func near(a, b, tol float64) bool { return math.Abs(a-b) <= tol }
 
-// issueWheel is the example request of the endpoint contract: a dished
+// contractWheel is the example request of the endpoint contract: a dished
 // J-bend rear, 32 holes, 3-cross both sides.
-func issueWheel() Wheel {
+func contractWheel() Wheel {
 	return Wheel{
 		SpokeCount: 32,
 		Hub: Hub{Type: JBend,

@@ -88,7 +88,7 @@ func TestOrderLengthIsHookeInverse(t *testing.T) {
 			t.Errorf("%s: package E %v GPa, reference %v", name, m.EGPa, eGPa)
 		}
 		for _, sections := range [][]Section{nil, {{LengthMM: 50, DiameterMM: 2.0}, {LengthMM: 12, DiameterMM: 2.3}}} {
-			w := issueWheel()
+			w := contractWheel()
 			w.Spoke = &Spoke{DiameterMM: fp(1.8), Material: name, Sections: sections}
 			if name == "aluminium" {
 				w.TargetTensionN = fp(900)
@@ -119,7 +119,7 @@ func TestOrderLengthIsHookeInverse(t *testing.T) {
 // TestModulusOverride: e_gpa replaces the material's modulus; stiffer wire
 // stretches less (Hooke's law: ΔL ∝ 1/E).
 func TestModulusOverride(t *testing.T) {
-	a, b := issueWheel(), issueWheel()
+	a, b := contractWheel(), contractWheel()
 	b.Spoke.EGPa = fp(2 * 193)
 	ra, _ := Compute(a)
 	rb, err := Compute(b)
