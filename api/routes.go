@@ -27,11 +27,12 @@ func (s *Server) routeTable(g prometheus.Gatherer) []Route {
 		{Method: http.MethodGet, Path: "/v1/me", Role: service.RoleRead, handler: s.getMe},
 
 		{Method: http.MethodGet, Path: "/v1/locations", Role: service.RoleRead, handler: s.listLocations},
-		{Method: http.MethodPost, Path: "/v1/locations", Role: service.RoleAdmin, handler: s.createLocation},
+		{Method: http.MethodPost, Path: "/v1/locations", Role: service.RoleAdmin, Idempotent: true, handler: s.createLocation},
 		{Method: http.MethodGet, Path: "/v1/locations/{id}", Role: service.RoleRead, handler: s.getLocation},
 		{Method: http.MethodPatch, Path: "/v1/locations/{id}", Role: service.RoleAdmin, handler: s.updateLocation},
 
 		{Method: http.MethodGet, Path: "/v1/api-keys", Role: service.RoleAdmin, handler: s.listAPIKeys},
+		// Not idempotent by key: a replay would have to keep the secret.
 		{Method: http.MethodPost, Path: "/v1/api-keys", Role: service.RoleAdmin, handler: s.createAPIKey},
 		{Method: http.MethodDelete, Path: "/v1/api-keys/{id}", Role: service.RoleAdmin, handler: s.revokeAPIKey},
 	}

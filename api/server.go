@@ -59,7 +59,9 @@ type Route struct {
 	Path      string // OpenAPI form, /v1/locations/{id}
 	Role      service.Role
 	BodyLimit int64
-	handler   echo.HandlerFunc
+	// Idempotent routes honour Idempotency-Key (every creating POST).
+	Idempotent bool
+	handler    echo.HandlerFunc
 }
 
 func init() {
@@ -118,7 +120,11 @@ func New(cfg Config) (*Server, error) {
 	s.routes = s.routeTable(cfg.Gatherer)
 	s.byKey = make(map[string]Route, len(s.routes))
 	for _, r := range s.routes {
-		e.Add(r.Method, echoPath(r.Path), r.handler)
+		var mw []echo.MiddlewareFunc
+		if r.Idempotent {
+			mw = append(mw, s.idempotent)
+		}
+		e.Add(r.Method, echoPath(r.Path), r.handler, mw...)
 		s.byKey[r.Method+" "+echoPath(r.Path)] = r
 	}
 	s.echo = e

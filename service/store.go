@@ -2,6 +2,7 @@ package service
 
 import (
 	"context"
+	"time"
 
 	"github.com/google/uuid"
 )
@@ -29,4 +30,10 @@ type Store interface {
 	ListAPIKeys(ctx context.Context, orgID uuid.UUID, p Page) ([]APIKey, error)
 	RevokeAPIKey(ctx context.Context, orgID, id uuid.UUID) (APIKey, error)
 	RevokeAPIKeyByPrefix(ctx context.Context, prefix string) (APIKey, error)
+
+	// RunIdempotent runs fn in one transaction with the key's record; see
+	// Service.RunIdempotent. replayed is true when the stored response is
+	// returned without running fn.
+	RunIdempotent(ctx context.Context, orgID uuid.UUID, req IdempotentRequest, expires time.Time,
+		fn func(ctx context.Context) (StoredResponse, error)) (resp StoredResponse, replayed bool, err error)
 }

@@ -15,7 +15,7 @@ import (
 func (s *Store) CreateOrganisation(ctx context.Context, o service.Organisation) (err error) {
 	defer wrap(&err, "create organisation")
 	const q = `INSERT INTO organisations (id, name, created_at) VALUES ($1, $2, $3)`
-	_, err = s.q.Exec(ctx, q, o.ID, o.Name, o.CreatedAt)
+	_, err = s.db(ctx).Exec(ctx, q, o.ID, o.Name, o.CreatedAt)
 	return err
 }
 
@@ -23,7 +23,7 @@ func (s *Store) CreateOrganisation(ctx context.Context, o service.Organisation) 
 func (s *Store) GetOrganisation(ctx context.Context, id uuid.UUID) (o service.Organisation, err error) {
 	defer wrap(&err, "get organisation")
 	const q = `SELECT id, name, created_at FROM organisations WHERE id = $1`
-	err = s.q.QueryRow(ctx, q, id).Scan(&o.ID, &o.Name, &o.CreatedAt)
+	err = s.db(ctx).QueryRow(ctx, q, id).Scan(&o.ID, &o.Name, &o.CreatedAt)
 	return o, err
 }
 
@@ -39,7 +39,7 @@ func scanLocation(row pgx.CollectableRow) (service.Location, error) {
 func (s *Store) CreateLocation(ctx context.Context, l service.Location) (err error) {
 	defer wrap(&err, "create location")
 	const q = `INSERT INTO locations (` + locationColumns + `) VALUES ($1, $2, $3, $4, $5, $6, $7, $8, $9)`
-	_, err = s.q.Exec(ctx, q, l.OrgID, l.ID, l.Name, l.Code, l.Timezone, l.Address, l.Version, l.CreatedAt, l.UpdatedAt)
+	_, err = s.db(ctx).Exec(ctx, q, l.OrgID, l.ID, l.Name, l.Code, l.Timezone, l.Address, l.Version, l.CreatedAt, l.UpdatedAt)
 	return err
 }
 
@@ -47,7 +47,7 @@ func (s *Store) CreateLocation(ctx context.Context, l service.Location) (err err
 func (s *Store) GetLocation(ctx context.Context, orgID, id uuid.UUID) (l service.Location, err error) {
 	defer wrap(&err, "get location")
 	const q = `SELECT ` + locationColumns + ` FROM locations WHERE org_id = $1 AND id = $2`
-	rows, _ := s.q.Query(ctx, q, orgID, id)
+	rows, _ := s.db(ctx).Query(ctx, q, orgID, id)
 	return pgx.CollectExactlyOneRow(rows, scanLocation)
 }
 
@@ -55,7 +55,7 @@ func (s *Store) GetLocation(ctx context.Context, orgID, id uuid.UUID) (l service
 func (s *Store) ListLocations(ctx context.Context, orgID uuid.UUID, p service.Page) (ls []service.Location, err error) {
 	defer wrap(&err, "list locations")
 	const q = `SELECT ` + locationColumns + ` FROM locations WHERE org_id = $1 AND id > $2 ORDER BY id LIMIT $3`
-	rows, _ := s.q.Query(ctx, q, orgID, p.After, p.Limit)
+	rows, _ := s.db(ctx).Query(ctx, q, orgID, p.After, p.Limit)
 	return pgx.CollectRows(rows, scanLocation)
 }
 
@@ -68,7 +68,7 @@ func (s *Store) UpdateLocation(ctx context.Context, orgID, id uuid.UUID, version
 	    version = version + 1, updated_at = now()
 	  WHERE org_id = $1 AND id = $2 AND version = $3
 	  RETURNING ` + locationColumns
-	rows, _ := s.q.Query(ctx, q, orgID, id, version, p.Name, p.Code, p.Timezone, p.Address)
+	rows, _ := s.db(ctx).Query(ctx, q, orgID, id, version, p.Name, p.Code, p.Timezone, p.Address)
 	l, err = pgx.CollectExactlyOneRow(rows, scanLocation)
 	if errors.Is(err, pgx.ErrNoRows) {
 		return l, service.ErrPreconditionFailed

@@ -26,13 +26,12 @@ type querier interface {
 // Store implements service.Store on a pgx pool.
 type Store struct {
 	pool *pgxpool.Pool
-	q    querier
 }
 
 var _ service.Store = (*Store)(nil)
 
 // New returns a Store over pool.
-func New(pool *pgxpool.Pool) *Store { return &Store{pool: pool, q: pool} }
+func New(pool *pgxpool.Pool) *Store { return &Store{pool: pool} }
 
 // Pool returns the underlying pool (for metrics).
 func (s *Store) Pool() *pgxpool.Pool { return s.pool }
@@ -85,9 +84,25 @@ func isUnavailable(err error) bool {
 	return errors.Is(err, context.DeadlineExceeded) && !errors.Is(err, context.Canceled)
 }
 
-// inTx runs fn in a transaction, retrying a bounded number of times on
-// serialization failures and deadlocks (40001, 40P01).
+// txKey carries the transaction of RunIdempotent to the store methods the
+// request calls, so that their writes commit or roll back with its record.
+type txKey struct{}
+
+// db returns the transaction carried by ctx, else the pool.
+func (s *Store) db(ctx context.Context) querier {
+	if tx, ok := ctx.Value(txKey{}).(pgx.Tx); ok {
+		return tx
+	}
+	return s.pool
+}
+
+// inTx runs fn in a transaction — a savepoint inside the one ctx carries —
+// retrying a bounded number of times on serialization failures and
+// deadlocks (40001, 40P01) when it owns the transaction.
 func (s *Store) inTx(ctx context.Context, fn func(tx pgx.Tx) error) error {
+	if tx, ok := ctx.Value(txKey{}).(pgx.Tx); ok {
+		return pgx.BeginFunc(ctx, tx, fn)
+	}
 	var err error
 	for attempt := 0; attempt < 4; attempt++ {
 		err = pgx.BeginFunc(ctx, s.pool, fn)
