@@ -92,10 +92,10 @@ func TestBeamLimits(t *testing.T) {
 	}
 }
 
-// fdBeam solves EI w'''' − T w'' = P δ(x − S/2), simply supported
-// (w = w'' = 0 at both ends), by finite differences written independently
-// of the closed form: with v = w'' it splits into EI v'' − T v = P δ and
-// w'' = v, each a tridiagonal system on n intervals (n even, the load on the
+// fdBeam solves EI w”” − T w” = P δ(x − S/2), simply supported
+// (w = w” = 0 at both ends), by finite differences written independently
+// of the closed form: with v = w” it splits into EI v” − T v = P δ and
+// w” = v, each a tridiagonal system on n intervals (n even, the load on the
 // middle node as P/h). It returns the nodal deflections.
 func fdBeam(p, tn, s, ei float64, n int) []float64 {
 	h := s / float64(n)
