@@ -274,7 +274,7 @@ func (m *Model) Audit(req AuditRequest) (AuditResult, error) {
 	if l, r := means["left"], means["right"]; l > 0 && r > 0 {
 		mr := l / r
 		out.MeasuredLeftRightRatio = &mr
-		if ratio != nil && math.Abs(mr / *ratio-1) > tol/100 {
+		if ratio != nil && math.Abs(mr / *ratio - 1) > tol/100 {
 			out.Warnings = append(out.Warnings, Warning{WarnRatioMismatch, "warning", fmt.Sprintf(
 				"the measured left/right ratio %.3f differs from the geometric %.3f by more than %g %%: check the dish and the readings", mr, *ratio, tol)})
 		}
