@@ -48,8 +48,7 @@ func gammaFn(u float64) float64 {
 		return u * (u - 1.5) / ((u - 1) * (u - 1))
 	}
 	th := math.Tanh(u)
-	ch := math.Cosh(u)
-	n := u - 1.5*th + 0.5*u/(ch*ch)
+	n := u - 1.5*th + 0.5*u*(1-th*th) // sech²u = 1 − tanh²u
 	d := u - th
 	return u * n / (d * d)
 }
@@ -101,6 +100,16 @@ func beamAt(tN, sMM, ei float64) beam {
 	return b
 }
 
+// beamCG evaluates only the compliance C and path factor G of a span.
+func beamCG(tN, sMM, ei float64) (c, g float64) {
+	if tN < 0 {
+		tN = 0
+	}
+	u := 0.5 * sMM * math.Sqrt(tN/ei)
+	f, _ := phi(u)
+	return sMM * sMM * sMM / (48 * ei) * f, 2 * gammaFn(u) / sMM
+}
+
 // midspanDeflectionMM is δ = C·P for a point load pN at midspan.
 func midspanDeflectionMM(pN, tN, sMM, ei float64) float64 {
 	return beamAt(tN, sMM, ei).C * pN
@@ -110,6 +119,12 @@ func midspanDeflectionMM(pN, tN, sMM, ei float64) float64 {
 // equals c (mm/N). ok is false when c is not in (0, S³/(48EI)], i.e. no
 // non-negative tension gives that compliance.
 func invertCompliance(c, sMM, ei float64) (tN float64, ok bool) {
+	return invertComplianceFrom(c, sMM, ei, -1)
+}
+
+// invertComplianceFrom is invertCompliance started from a guessed tension
+// (negative: no guess); a close guess saves most Newton steps.
+func invertComplianceFrom(c, sMM, ei, guessN float64) (tN float64, ok bool) {
 	c0 := sMM * sMM * sMM / (48 * ei)
 	q := c / c0
 	if !(q > 0 && q <= 1) {
@@ -118,37 +133,44 @@ func invertCompliance(c, sMM, ei float64) (tN float64, ok bool) {
 	if q == 1 {
 		return 0, true
 	}
-	// Solve φ(u) = q for u > 0 by Newton on ln φ against ln u, started from
-	// the small-u series (φ ≈ 1 − 2u²/5) or the large-u limit (φ ≈ 3/u² − 3/u³).
-	var u float64
-	if q > 0.6 {
-		u = math.Sqrt(2.5 * (1 - q))
-	} else {
-		u = math.Sqrt(3 / q)
-		u = 1 / (q/3 + 1/u) // φ ≈ 3(u − 1)/u³ near there; refined by Newton
-		if u < 0.5 {
-			u = 0.5
+	// Solve 1/φ(u) = 1/q for u > 0. As a function of w = u², 1/φ is close
+	// to a straight line at both ends (1 + 2w/5 for small u, w/3 for large),
+	// so Newton in w converges in a few steps; φ ≤ 3/u² bounds the root by
+	// w ≤ 3/q, and bisection in [lo, hi] guards every step.
+	target := 1 / q
+	lo, hi := 0.0, 3/q+1
+	w := 3 / q
+	if q > 0.5 {
+		w = 2.5 * (target - 1) // small-u series start
+	}
+	if guessN > 0 {
+		if wg := 0.25 * sMM * sMM * guessN / ei; wg > 0 && wg < hi {
+			w = wg
 		}
 	}
-	lq := math.Log(q)
-	for k := 0; k < 60; k++ {
+	for k := 0; k < 100; k++ {
+		u := math.Sqrt(w)
 		f, df := phi(u)
-		// d ln φ / d ln u = u φ'/φ (negative).
-		slope := u * df / f
-		if slope == 0 {
+		g := 1/f - target
+		if g > 0 {
+			hi = w
+		} else {
+			lo = w
+		}
+		var next float64
+		if u > 0 {
+			next = w - g/(-df/(f*f)/(2*u))
+		}
+		if !(next > lo && next < hi) {
+			next = 0.5 * (lo + hi)
+		}
+		if math.Abs(next-w) <= 1e-12*w || hi-lo <= 1e-14*hi {
+			w = next
 			break
 		}
-		step := (math.Log(f) - lq) / slope
-		if step > 2 {
-			step = 2
-		} else if step < -2 {
-			step = -2
-		}
-		u *= math.Exp(-step)
-		if math.Abs(step) < 1e-14 {
-			break
-		}
+		w = next
 	}
+	u := math.Sqrt(w)
 	lam := 2 * u / sMM
 	return ei * lam * lam, true
 }

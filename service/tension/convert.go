@@ -133,7 +133,10 @@ func (m *Model) prepare(spec SpokeSpec, at string) (prepared, error) {
 		}
 	}
 	rr := math.Max(p.ratio, 1/p.ratio)
-	desc := sec.describe()
+	var desc string
+	if rr > ratioUnreliable {
+		desc = sec.describe()
+	}
 	switch {
 	case rr > ratioUnreliable:
 		p.unrel = true
@@ -182,27 +185,30 @@ func (p *prepared) columnHalfWidth() (w float64, resolutionOnly bool) {
 }
 
 // withThickness returns the section's evalSection with its diameter (or
-// thickness) changed by dmm, refinements kept.
+// thickness, for blades and bars) changed by dmm, refinements kept: EI
+// scales as d⁴ and EA as d² for round wire, as t³ and t for a section of
+// fixed width.
 func (p *prepared) withThickness(dmm float64) (evalSection, bool) {
-	spec := p.sec.Spec
-	if spec.Profile == "round" {
-		spec.DiameterMM += dmm
-	} else {
-		spec.ThicknessMM += dmm
-	}
-	e := p.sec.E
-	spec.EGPa, spec.Material = &e, ""
-	s, err := spec.resolve("")
-	if err != nil {
+	t := p.sec.T
+	f := (t + dmm) / t
+	if !(f > 0) {
 		return evalSection{}, false
 	}
 	es := p.es
-	es.ei0, es.ea, es.t = s.EI, s.EA, s.T
+	if p.sec.Spec.Profile == "round" {
+		es.ei0, es.ea = es.ei0*f*f*f*f, es.ea*f*f
+	} else {
+		es.ei0, es.ea = es.ei0*f*f*f, es.ea*f
+	}
+	es.t = t + dmm
 	return es, true
 }
 
 // sensitivity is |T(d + 0.01) − T(d − 0.01)|/2 at a fixed reading.
-func (p *prepared) sensitivity(reading float64) *float64 {
+func (p *prepared) sensitivity(reading float64) *float64 { return p.sensitivityFrom(reading, -1) }
+
+// sensitivityFrom is sensitivity with a guessed effective tension.
+func (p *prepared) sensitivityFrom(reading, teGuess float64) *float64 {
 	ph := p.m.Physical
 	if ph == nil {
 		return nil
@@ -212,8 +218,8 @@ func (p *prepared) sensitivity(reading float64) *float64 {
 	if !ok1 || !ok2 {
 		return nil
 	}
-	tu, _, ok1 := inverse(ph.Params, up, p.m.UnitMM, reading)
-	td, _, ok2 := inverse(ph.Params, dn, p.m.UnitMM, reading)
+	tu, _, ok1 := inverseFrom(ph.Params, up, p.m.UnitMM, reading, teGuess)
+	td, _, ok2 := inverseFrom(ph.Params, dn, p.m.UnitMM, reading, teGuess)
 	if !ok1 || !ok2 {
 		return nil
 	}
@@ -281,7 +287,7 @@ func (p *prepared) convert(reading float64, at string) (Result, error) {
 		return Result{}, impossible(at, "the tool model's curve is not monotone at reading %g for this section; no tension is given", reading)
 	}
 	w := p.halfWidthUnits(g)
-	lo, hi, err := p.interval(reading, w, g, at)
+	lo, hi, err := p.interval(reading, w, g, st.teff, at)
 	if err != nil {
 		return Result{}, err
 	}
@@ -292,7 +298,7 @@ func (p *prepared) convert(reading float64, at string) (Result, error) {
 		res.Method = MethodModelRefined
 	}
 	res.Status = p.modelStatus(t)
-	res.SensitivityNPer001MM = p.sensitivity(reading)
+	res.SensitivityNPer001MM = p.sensitivityFrom(reading, st.teff)
 	p.finish(&res.Reliable, &res.Warnings, &res.Cautions, t, res.IntervalN, res.ResolutionNPerUnit, res.Status)
 	res.TensionKgf, res.TensionLbf = KgfFromN(t), LbfFromN(t)
 	return res, nil
@@ -301,16 +307,16 @@ func (p *prepared) convert(reading float64, at string) (Result, error) {
 // interval solves the inverse-prediction set {T : |r − r̂(T)| ≤ w(T)},
 // starting from the half-width at the estimate and re-evaluating it once
 // at each end.
-func (p *prepared) interval(reading, w0 float64, g []float64, at string) (lo, hi float64, err error) {
+func (p *prepared) interval(reading, w0 float64, g []float64, teGuess float64, at string) (lo, hi float64, err error) {
 	ph, unit := p.m.Physical, p.m.UnitMM
 	end := func(sign float64, w float64) (float64, bool) {
-		t, st, ok := inverse(ph.Params, p.es, unit, reading+sign*w)
+		t, st, ok := inverseFrom(ph.Params, p.es, unit, reading+sign*w, teGuess)
 		if !ok {
 			return 0, false
 		}
 		gradient(ph.Params, p.es, unit, st, g)
 		w2 := p.halfWidthUnits(g)
-		if t2, _, ok := inverse(ph.Params, p.es, unit, reading+sign*w2); ok {
+		if t2, _, ok := inverseFrom(ph.Params, p.es, unit, reading+sign*w2, st.teff); ok {
 			return t2, true
 		}
 		return t, true

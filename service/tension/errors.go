@@ -63,6 +63,8 @@ func WithPointerPrefix(err error, prefix string) error {
 	return err
 }
 
+var pointerEscaper = strings.NewReplacer("~", "~0", "/", "~1")
+
 // ptr builds a JSON pointer from path segments, escaping ~ and / per RFC 6901.
 func ptr(segs ...any) string {
 	var b strings.Builder
@@ -72,7 +74,10 @@ func ptr(segs ...any) string {
 		case int:
 			b.WriteString(strconv.Itoa(v))
 		case string:
-			b.WriteString(strings.NewReplacer("~", "~0", "/", "~1").Replace(v))
+			if strings.ContainsAny(v, "~/") {
+				v = pointerEscaper.Replace(v)
+			}
+			b.WriteString(v)
 		default:
 			fmt.Fprint(&b, v)
 		}

@@ -87,6 +87,11 @@ func forward(th []float64, s evalSection, unit, tN float64) (r float64, st state
 // force, hence the compliance, whose inverse gives T_eff, and T follows.
 // ok is false when no positive tension produces the reading.
 func inverse(th []float64, s evalSection, unit, r float64) (tN float64, st state, ok bool) {
+	return inverseFrom(th, s, unit, r, -1)
+}
+
+// inverseFrom is inverse with a guessed effective tension to start from.
+func inverseFrom(th []float64, s evalSection, unit, r, guessN float64) (tN float64, st state, ok bool) {
 	span, f0, k, z0, beta := th[pSpan], th[pPreload], th[pSpring], th[pZero], th[pStretch]
 	ei := s.ei()
 	if !(span > 0) || !(ei > 0) {
@@ -97,16 +102,17 @@ func inverse(th []float64, s evalSection, unit, r float64) (tN float64, st state
 	if !(delta > 0) || !(p > 0) {
 		return 0, st, false
 	}
-	te, ok := invertCompliance(delta/p, span, ei)
+	te, ok := invertComplianceFrom(delta/p, span, ei, guessN)
 	if !ok {
 		return 0, st, false
 	}
-	b := beamAt(te, span, ei)
-	tN = te - beta*s.ea*b.G*delta*delta
+	_, gl := beamCG(te, span, ei)
+	tN = te - beta*s.ea*gl*delta*delta
 	if !(tN > 0) || !finite(tN) {
 		return 0, st, false
 	}
-	return tN, state{delta: delta, teff: te, p: p, b: b}, true
+	// st.b is left empty: gradient evaluates the full beam when it needs it.
+	return tN, state{delta: delta, teff: te, p: p}, true
 }
 
 // gradient fills g (length of the parameter vector) with ∂r/∂θ at fixed
@@ -116,6 +122,9 @@ func inverse(th []float64, s evalSection, unit, r float64) (tN float64, st state
 func gradient(th []float64, s evalSection, unit float64, st state, g []float64) (drdT float64) {
 	k, beta := th[pSpring], th[pStretch]
 	b, p, d := st.b, st.p, st.delta
+	if b.C == 0 {
+		b = beamAt(st.teff, th[pSpan], s.ei())
+	}
 	// Jacobian of (F1, F2) in (δ, T_eff).
 	a11 := 1 + b.C*k
 	a12 := -b.CT * p
