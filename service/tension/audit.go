@@ -1,0 +1,283 @@
+package tension
+
+import (
+	"errors"
+	"fmt"
+	"math"
+	"sort"
+)
+
+// defaultTolerancePct is ±10 % around the aim, common practice.
+const defaultTolerancePct = 10
+
+// AuditRequest is one built wheel's readings to audit. Spoke is the
+// section of every spoke unless SpokeLeft or SpokeRight overrides it for a
+// side. The target tension (N, kgf or lbf; optional) applies to TargetSide
+// (default "right", the drive side); the other side's aim is the target
+// times the geometric left/right ratio when given (divided by it when the
+// target is for the left), else the same target. Without a target each
+// side is audited against its own mean.
+type AuditRequest struct {
+	// CalibrationID is resolved by the caller; this package ignores it.
+	CalibrationID    string         `json:"calibration_id,omitempty"`
+	Calibration      *Calibration   `json:"calibration,omitempty"`
+	Spoke            SpokeSpec      `json:"spoke"`
+	SpokeLeft        *SpokeSpec     `json:"spoke_left,omitempty"`
+	SpokeRight       *SpokeSpec     `json:"spoke_right,omitempty"`
+	Readings         []AuditReading `json:"readings"`
+	TargetTensionN   *float64       `json:"target_tension_n,omitempty"`
+	TargetTensionKgf *float64       `json:"target_tension_kgf,omitempty"`
+	TargetTensionLbf *float64       `json:"target_tension_lbf,omitempty"`
+	TargetSide       string         `json:"target_side,omitempty"`
+	// TolerancePct is the allowed deviation in percent (default 10).
+	TolerancePct *float64 `json:"tolerance_pct,omitempty"`
+	// GeometricLeftRightRatio is T_left/T_right from the wheel's geometry.
+	GeometricLeftRightRatio *float64 `json:"geometric_left_right_ratio,omitempty"`
+}
+
+// AuditReading is one spoke's dial reading.
+type AuditReading struct {
+	Side    string  `json:"side"`
+	Spoke   int     `json:"spoke"`
+	Reading float64 `json:"reading"`
+}
+
+// AuditResult summarises the wheel per side and per spoke.
+type AuditResult struct {
+	TolerancePct            float64        `json:"tolerance_pct"`
+	Sides                   []SideSummary  `json:"sides"`
+	Spokes                  []SpokeVerdict `json:"spokes"`
+	MeasuredLeftRightRatio  *float64       `json:"measured_left_right_ratio,omitempty"`
+	GeometricLeftRightRatio *float64       `json:"geometric_left_right_ratio,omitempty"`
+	Warnings                []Warning      `json:"warnings"`
+	Cautions                []string       `json:"cautions"`
+}
+
+// SideSummary is one side's statistics. AimN is the tension the side's
+// spokes should have (its target, or its mean without one); Outliers lists
+// the spoke indices outside ±tolerance of the side's mean.
+type SideSummary struct {
+	Side         string  `json:"side"`
+	Count        int     `json:"count"`
+	AimN         float64 `json:"aim_n"`
+	AimReading   float64 `json:"aim_reading"`
+	MeanN        float64 `json:"mean_n"`
+	SDN          float64 `json:"sd_n"`
+	MinN         float64 `json:"min_n"`
+	MaxN         float64 `json:"max_n"`
+	MeanVsAimPct float64 `json:"mean_vs_aim_pct"`
+	Outliers     []int   `json:"outliers"`
+}
+
+// SpokeVerdict is one spoke: its tension, how far it is from the side's
+// aim and mean, the reading to aim for, and the action: "tighten" below
+// aim − tolerance, "loosen" above aim + tolerance, else "ok".
+type SpokeVerdict struct {
+	Side          string     `json:"side"`
+	Spoke         int        `json:"spoke"`
+	Reading       float64    `json:"reading"`
+	TensionN      float64    `json:"tension_n"`
+	IntervalN     [2]float64 `json:"interval_n"`
+	Reliable      bool       `json:"reliable"`
+	VsAimPct      float64    `json:"vs_aim_pct"`
+	VsMeanPct     float64    `json:"vs_mean_pct"`
+	Outlier       bool       `json:"outlier"`
+	TargetReading float64    `json:"target_reading"`
+	Action        string     `json:"action"`
+}
+
+// Audit code for a left/right ratio that disagrees with the geometry.
+const WarnRatioMismatch = "left_right_ratio_mismatch"
+
+// Audit converts every reading with the model and judges the wheel.
+// Errors are *FieldError with pointers into the audit body.
+func (m *Model) Audit(req AuditRequest) (AuditResult, error) {
+	var errs []error
+	tol := float64(defaultTolerancePct)
+	if req.TolerancePct != nil {
+		tol = *req.TolerancePct
+		if !finite(tol) || tol <= 0 || tol > 50 {
+			errs = append(errs, badField("/tolerance_pct", "tolerance_pct must be above 0 and at most 50"))
+		}
+	}
+	ratio := req.GeometricLeftRightRatio
+	if ratio != nil && (!finite(*ratio) || *ratio <= 0 || *ratio > 10) {
+		errs = append(errs, badField("/geometric_left_right_ratio", "geometric_left_right_ratio must be positive and at most 10"))
+	}
+	targetSide := req.TargetSide
+	if targetSide == "" {
+		targetSide = "right"
+	}
+	if targetSide != "left" && targetSide != "right" {
+		errs = append(errs, badField("/target_side", "target_side must be left or right"))
+	}
+	var target *float64
+	set := 0
+	for _, c := range []struct {
+		at string
+		v  *float64
+		f  func(float64) float64
+	}{{"/target_tension_n", req.TargetTensionN, func(v float64) float64 { return v }},
+		{"/target_tension_kgf", req.TargetTensionKgf, NFromKgf}, {"/target_tension_lbf", req.TargetTensionLbf, NFromLbf}} {
+		if c.v == nil {
+			continue
+		}
+		set++
+		v := c.f(*c.v)
+		if set > 1 {
+			errs = append(errs, badField(c.at, "give one target tension only"))
+		} else if !finite(v) || v <= 0 || v > maxTensionN {
+			errs = append(errs, badField(c.at, "the target tension must be positive and at most %d N", maxTensionN))
+		} else {
+			target = &v
+		}
+	}
+	if len(req.Readings) == 0 || len(req.Readings) > maxReadings {
+		errs = append(errs, badField("/readings", "give between 1 and %d readings", maxReadings))
+	}
+	if err := errors.Join(errs...); err != nil {
+		return AuditResult{}, err
+	}
+	specs := map[string]SpokeSpec{"left": req.Spoke, "right": req.Spoke}
+	atOf := map[string]string{"left": "/spoke", "right": "/spoke"}
+	if req.SpokeLeft != nil {
+		specs["left"], atOf["left"] = *req.SpokeLeft, "/spoke_left"
+	}
+	if req.SpokeRight != nil {
+		specs["right"], atOf["right"] = *req.SpokeRight, "/spoke_right"
+	}
+	preps := map[string]*prepared{}
+	out := AuditResult{TolerancePct: tol, GeometricLeftRightRatio: ratio, Warnings: []Warning{}, Cautions: []string{}}
+	caution := map[string]bool{}
+	addCaution := func(c string) {
+		if !caution[c] {
+			caution[c] = true
+			out.Cautions = append(out.Cautions, c)
+		}
+	}
+	seen := map[[2]any]bool{}
+	bySide := map[string][]int{}
+	for i, rd := range req.Readings {
+		if rd.Side != "left" && rd.Side != "right" {
+			errs = append(errs, badField(ptr("readings", i, "side"), "side must be left or right"))
+			continue
+		}
+		if rd.Spoke < 0 {
+			errs = append(errs, badField(ptr("readings", i, "spoke"), "spoke must be a non-negative index"))
+			continue
+		}
+		key := [2]any{rd.Side, rd.Spoke}
+		if seen[key] {
+			errs = append(errs, badField(ptr("readings", i, "spoke"), "spoke %d on the %s side is listed twice", rd.Spoke, rd.Side))
+			continue
+		}
+		seen[key] = true
+		p := preps[rd.Side]
+		if p == nil {
+			pp, err := m.prepare(specs[rd.Side], atOf[rd.Side])
+			if err != nil {
+				return AuditResult{}, err
+			}
+			p = &pp
+			preps[rd.Side] = p
+		}
+		res, err := p.convert(rd.Reading, ptr("readings", i, "reading"))
+		if err != nil {
+			errs = append(errs, err)
+			continue
+		}
+		for _, c := range res.Cautions {
+			addCaution(c)
+		}
+		out.Spokes = append(out.Spokes, SpokeVerdict{Side: rd.Side, Spoke: rd.Spoke, Reading: rd.Reading,
+			TensionN: res.TensionN, IntervalN: res.IntervalN, Reliable: res.Reliable})
+		bySide[rd.Side] = append(bySide[rd.Side], len(out.Spokes)-1)
+	}
+	if err := errors.Join(errs...); err != nil {
+		return AuditResult{}, err
+	}
+	aims := map[string]float64{}
+	if target != nil {
+		other := map[string]string{"left": "right", "right": "left"}[targetSide]
+		aims[targetSide], aims[other] = *target, *target
+		if ratio != nil {
+			if targetSide == "right" {
+				aims["left"] = *target * *ratio
+			} else {
+				aims["right"] = *target / *ratio
+			}
+		}
+	} else {
+		out.Warnings = append(out.Warnings, Warning{"no_target", "info", "no target tension: each side is judged against its own mean"})
+	}
+	means := map[string]float64{}
+	for _, side := range []string{"left", "right"} {
+		idx := bySide[side]
+		if len(idx) == 0 {
+			continue
+		}
+		s := SideSummary{Side: side, Count: len(idx), MinN: math.Inf(1), Outliers: []int{}}
+		for _, k := range idx {
+			t := out.Spokes[k].TensionN
+			s.MeanN += t
+			s.MinN, s.MaxN = math.Min(s.MinN, t), math.Max(s.MaxN, t)
+		}
+		s.MeanN /= float64(len(idx))
+		for _, k := range idx {
+			d := out.Spokes[k].TensionN - s.MeanN
+			s.SDN += d * d
+		}
+		if len(idx) > 1 {
+			s.SDN = math.Sqrt(s.SDN / float64(len(idx)-1)) // sample SD
+		} else {
+			s.SDN = 0
+		}
+		aim, ok := aims[side]
+		if !ok {
+			aim = s.MeanN
+		}
+		s.AimN = aim
+		tg, err := preps[side].target(aim, "/target_tension_n")
+		if err != nil {
+			return AuditResult{}, err
+		}
+		s.AimReading = tg.Reading
+		for _, c := range tg.Cautions {
+			addCaution(c)
+		}
+		s.MeanVsAimPct = 100 * (s.MeanN - aim) / aim
+		for _, k := range idx {
+			v := &out.Spokes[k]
+			v.VsAimPct = 100 * (v.TensionN - aim) / aim
+			v.VsMeanPct = 100 * (v.TensionN - s.MeanN) / s.MeanN
+			v.Outlier = math.Abs(v.VsMeanPct) > tol
+			v.TargetReading = tg.Reading
+			switch {
+			case v.VsAimPct < -tol:
+				v.Action = "tighten"
+			case v.VsAimPct > tol:
+				v.Action = "loosen"
+			default:
+				v.Action = "ok"
+			}
+			if v.Outlier {
+				s.Outliers = append(s.Outliers, v.Spoke)
+			}
+			if v.TensionN < 0.5*aim {
+				addCaution(fmt.Sprintf("Spoke %d on the %s side is below half its aim; slack spokes loosen and break. Bring it up before the wheel is ridden.", v.Spoke, side))
+			}
+		}
+		sort.Ints(s.Outliers)
+		means[side] = s.MeanN
+		out.Sides = append(out.Sides, s)
+	}
+	if l, r := means["left"], means["right"]; l > 0 && r > 0 {
+		mr := l / r
+		out.MeasuredLeftRightRatio = &mr
+		if ratio != nil && math.Abs(mr / *ratio - 1) > tol/100 {
+			out.Warnings = append(out.Warnings, Warning{WarnRatioMismatch, "warning", fmt.Sprintf(
+				"the measured left/right ratio %.3f differs from the geometric %.3f by more than %g %%: check the dish and the readings", mr, *ratio, tol)})
+		}
+	}
+	return out, nil
+}

@@ -1,0 +1,447 @@
+package tension
+
+import (
+	"fmt"
+	"math"
+)
+
+// Result thresholds (DESIGN.md §4.2).
+const (
+	ratioVerify     = 1.3  // stiffness ratio: verify with one known tension
+	ratioCalibrate  = 1.6  // calibrate this size
+	ratioUnreliable = 2.2  // unreliable: no bare number
+	halfWidthMax    = 0.05 // interval half-width as a share of the tension
+	resolutionMax   = 0.03 // N per dial unit as a share of the tension
+	// modelFormUnits is the model-form term m of the interval, in dial units.
+	modelFormUnits = 0.5
+	// sensitivityStepMM is the diameter (thickness) error the sensitivity
+	// figure refers to.
+	sensitivityStepMM = 0.01
+)
+
+// Result is one converted reading. When Reliable is false the tension is
+// still given, with its interval, but must not be used on its own: a
+// warning result_unreliable and a caution say why.
+type Result struct {
+	Reading    float64    `json:"reading"`
+	TensionN   float64    `json:"tension_n"`
+	TensionKgf float64    `json:"tension_kgf"`
+	TensionLbf float64    `json:"tension_lbf"`
+	IntervalN  [2]float64 `json:"interval_n"`
+	Reliable   bool       `json:"reliable"`
+	Status     string     `json:"status"`
+	Method     string     `json:"method"`
+	// DeltaDiameterMM is how far the section lies outside the calibrated
+	// ones, as the round diameter of equal bending stiffness in the nearest
+	// column's material minus that column's (0 inside, negative below).
+	DeltaDiameterMM float64 `json:"delta_diameter_mm"`
+	// StiffnessRatio is EI / EI of the nearest calibrated column.
+	StiffnessRatio     float64 `json:"stiffness_ratio"`
+	ResolutionNPerUnit float64 `json:"resolution_n_per_unit"`
+	// SensitivityNPer001MM is the tension change for a 0.01 mm error in the
+	// entered diameter (thickness for blades); absent without a tool model.
+	SensitivityNPer001MM *float64  `json:"sensitivity_n_per_0_01_mm,omitempty"`
+	Warnings             []Warning `json:"warnings"`
+	Cautions             []string  `json:"cautions"`
+}
+
+// Target is the reading to aim for at a target tension.
+type Target struct {
+	TensionN             float64    `json:"tension_n"`
+	TensionKgf           float64    `json:"tension_kgf"`
+	TensionLbf           float64    `json:"tension_lbf"`
+	Reading              float64    `json:"reading"`
+	ReadingInterval      [2]float64 `json:"reading_interval"`
+	Reliable             bool       `json:"reliable"`
+	Status               string     `json:"status"`
+	Method               string     `json:"method"`
+	DeltaDiameterMM      float64    `json:"delta_diameter_mm"`
+	StiffnessRatio       float64    `json:"stiffness_ratio"`
+	ResolutionNPerUnit   float64    `json:"resolution_n_per_unit"`
+	SensitivityNPer001MM *float64   `json:"sensitivity_n_per_0_01_mm,omitempty"`
+	Warnings             []Warning  `json:"warnings"`
+	Cautions             []string   `json:"cautions"`
+}
+
+// prepared is a section ready for conversion against one model.
+type prepared struct {
+	m        *Model
+	at       string // pointer of the spoke spec
+	sec      section
+	es       evalSection
+	col      int  // matching column, −1 if none
+	inside   bool // within the calibrated envelope of sections
+	ratio    float64
+	deltaD   float64
+	secWarns []Warning
+	secCauts []string
+	unrel    bool
+}
+
+func (c ModelColumn) section() section {
+	return section{Spec: c.Spoke, EI: c.EINmm2, EA: c.EAN, T: c.ThicknessMM, E: c.EGPa}
+}
+
+// prepare resolves a section against the model. at is the JSON pointer of
+// the spoke spec in the request.
+func (m *Model) prepare(spec SpokeSpec, at string) (prepared, error) {
+	sec, err := spec.resolve(at)
+	if err != nil {
+		return prepared{}, err
+	}
+	if len(m.Columns) == 0 {
+		return prepared{}, impossible(at, "the model has no calibrated columns")
+	}
+	p := prepared{m: m, at: at, sec: sec, col: -1,
+		es: evalSection{ei0: sec.EI, ea: sec.EA, t: sec.T, kEI: 1, iK: -1, iC: -1}}
+	eiMin, eiMax := math.Inf(1), 0.0
+	tMin, tMax := math.Inf(1), 0.0
+	sameE := false
+	nearest, best := 0, math.Inf(1)
+	for i, c := range m.Columns {
+		cs := c.section()
+		if sameSection(cs, sec) {
+			p.col = i
+		}
+		eiMin, eiMax = math.Min(eiMin, cs.EI), math.Max(eiMax, cs.EI)
+		tMin, tMax = math.Min(tMin, cs.T), math.Max(tMax, cs.T)
+		if math.Abs(cs.E-sec.E) <= 1e-9*cs.E {
+			sameE = true
+		}
+		if d := math.Abs(math.Log(sec.EI / cs.EI)); d < best {
+			nearest, best = i, d
+		}
+	}
+	edge := m.Columns[nearest]
+	p.ratio = sec.EI / edge.EINmm2
+	p.inside = sameE && sec.EI >= eiMin && sec.EI <= eiMax && sec.T >= tMin && sec.T <= tMax
+	if sec.EI < eiMin || sec.EI > eiMax {
+		// Round diameter of equal EI in the edge column's material.
+		dEq := func(ei float64) float64 { return math.Pow(64*ei/(math.Pi*edge.EGPa*1000), 0.25) }
+		p.deltaD = dEq(sec.EI) - dEq(edge.EINmm2)
+	}
+	if p.col >= 0 {
+		p.ratio, p.deltaD, p.inside = 1, 0, true
+		if ph := m.Physical; ph != nil {
+			c := m.Columns[p.col]
+			if c.EIFactorIndex >= 0 && c.EIFactorIndex < len(ph.Params) {
+				p.es.iK, p.es.kEI = c.EIFactorIndex, ph.Params[c.EIFactorIndex]
+			}
+			if c.OffsetIndex >= 0 && c.OffsetIndex < len(ph.Params) {
+				p.es.iC, p.es.offset = c.OffsetIndex, ph.Params[c.OffsetIndex]
+			}
+		}
+	}
+	rr := math.Max(p.ratio, 1/p.ratio)
+	var desc string
+	if rr > ratioUnreliable {
+		desc = sec.describe()
+	}
+	switch {
+	case rr > ratioUnreliable:
+		p.unrel = true
+		p.secWarns = append(p.secWarns, Warning{WarnUnreliable, "warning", fmt.Sprintf(
+			"the %s spoke's bending stiffness is %.2f× that of the nearest calibrated column (beyond %.1f×): results are unreliable", desc, p.ratio, ratioUnreliable)})
+		fallthrough
+	case rr > ratioCalibrate:
+		p.secWarns = append(p.secWarns, Warning{WarnStiffnessCalibrate, "warning", fmt.Sprintf(
+			"stiffness ratio %.2f is beyond %.1f: calibrate this size with known tensions (about 600, 1000 and 1400 N, three readings each)", p.ratio, ratioCalibrate)})
+		fallthrough
+	case rr > ratioVerify:
+		p.secWarns = append(p.secWarns, Warning{WarnStiffnessVerify, "warning", fmt.Sprintf(
+			"stiffness ratio %.2f is beyond %.1f: verify the tool on this spoke with one known tension", p.ratio, ratioVerify)})
+	}
+	if !sameE {
+		p.secCauts = append(p.secCauts, fmt.Sprintf("No calibrated column has this spoke's modulus (%g GPa); the result rests on the tool model and the material's stiffness.", sec.E))
+	}
+	return p, nil
+}
+
+// halfWidthUnits is t₀.₉₇₅·√(s² + gᵀCov g + m²), in dial units.
+func (p *prepared) halfWidthUnits(g []float64) float64 {
+	ph := p.m.Physical
+	v := ph.ResidualSDUnits*ph.ResidualSDUnits + modelFormUnits*modelFormUnits
+	for a := range g {
+		if g[a] == 0 {
+			continue
+		}
+		row := ph.Covariance[a]
+		for b := range g {
+			v += g[a] * row[b] * g[b]
+		}
+	}
+	return ph.T975 * math.Sqrt(math.Max(v, 0))
+}
+
+// columnHalfWidth is the reading half-width used with a column curve: the
+// fitted scatter and model-form term when a tool model exists, otherwise
+// the half-unit reading resolution alone.
+func (p *prepared) columnHalfWidth() (w float64, resolutionOnly bool) {
+	if ph := p.m.Physical; ph != nil {
+		s := ph.ResidualSDUnits
+		return ph.T975 * math.Sqrt(s*s+modelFormUnits*modelFormUnits), false
+	}
+	return modelFormUnits, true
+}
+
+// withThickness returns the section's evalSection with its diameter (or
+// thickness, for blades and bars) changed by dmm, refinements kept: EI
+// scales as d⁴ and EA as d² for round wire, as t³ and t for a section of
+// fixed width.
+func (p *prepared) withThickness(dmm float64) (evalSection, bool) {
+	t := p.sec.T
+	f := (t + dmm) / t
+	if !(f > 0) {
+		return evalSection{}, false
+	}
+	es := p.es
+	if p.sec.Spec.Profile == "round" {
+		es.ei0, es.ea = es.ei0*f*f*f*f, es.ea*f*f
+	} else {
+		es.ei0, es.ea = es.ei0*f*f*f, es.ea*f
+	}
+	es.t = t + dmm
+	return es, true
+}
+
+// sensitivity is |T(d + 0.01) − T(d − 0.01)|/2 at a fixed reading.
+func (p *prepared) sensitivity(reading float64) *float64 { return p.sensitivityFrom(reading, -1) }
+
+// sensitivityFrom is sensitivity with a guessed effective tension.
+func (p *prepared) sensitivityFrom(reading, teGuess float64) *float64 {
+	ph := p.m.Physical
+	if ph == nil {
+		return nil
+	}
+	up, ok1 := p.withThickness(sensitivityStepMM)
+	dn, ok2 := p.withThickness(-sensitivityStepMM)
+	if !ok1 || !ok2 {
+		return nil
+	}
+	tu, _, ok1 := inverseFrom(ph.Params, up, p.m.UnitMM, reading, teGuess)
+	td, _, ok2 := inverseFrom(ph.Params, dn, p.m.UnitMM, reading, teGuess)
+	if !ok1 || !ok2 {
+		return nil
+	}
+	v := math.Abs(tu-td) / 2
+	return &v
+}
+
+// Convert turns one dial reading on the given section into a tension.
+// Errors are *FieldError with pointers "/spoke…" and "/reading".
+func (m *Model) Convert(spec SpokeSpec, reading float64) (Result, error) {
+	p, err := m.prepare(spec, "/spoke")
+	if err != nil {
+		return Result{}, err
+	}
+	return p.convert(reading, "/reading")
+}
+
+func (p *prepared) convert(reading float64, at string) (Result, error) {
+	m := p.m
+	if !finite(reading) || math.Abs(reading) > maxReading {
+		return Result{}, badField(at, "reading must be a finite dial reading")
+	}
+	res := Result{Reading: reading, Reliable: true, StiffnessRatio: p.ratio, DeltaDiameterMM: p.deltaD,
+		Warnings: append([]Warning{}, p.secWarns...), Cautions: append([]string{}, p.secCauts...)}
+	if p.col >= 0 && m.Columns[p.col].Curve != nil {
+		cv := m.Columns[p.col].Curve.cubic()
+		if reading >= cv.X[0] && reading <= cv.X[len(cv.X)-1] {
+			t, slope := cv.at(reading)
+			w, resOnly := p.columnHalfWidth()
+			lo, _ := cv.at(reading - w)
+			hi, _ := cv.at(reading + w)
+			res.TensionN, res.Method, res.Status = t, MethodColumn, StatusInterpolated
+			for _, x := range cv.X {
+				if x == reading {
+					res.Status = StatusCalibrated
+				}
+			}
+			res.IntervalN = [2]float64{math.Max(lo, 0), hi}
+			res.ResolutionNPerUnit = slope
+			if resOnly {
+				res.Warnings = append(res.Warnings, Warning{WarnResolutionOnlyInterval, "info",
+					"without a fitted tool model the interval covers only the dial's half-unit reading resolution, not the table's own error"})
+			}
+			res.SensitivityNPer001MM = p.sensitivity(reading)
+			p.finish(&res.Reliable, &res.Warnings, &res.Cautions, t, res.IntervalN, res.ResolutionNPerUnit, res.Status)
+			res.TensionKgf, res.TensionLbf = KgfFromN(t), LbfFromN(t)
+			return res, nil
+		}
+	}
+	ph := m.Physical
+	if ph == nil {
+		if p.col >= 0 {
+			return Result{}, impossible(at, "reading %g is outside the calibrated column's table and the calibration cannot identify a tool model to go beyond it: %s", reading, m.Unidentified)
+		}
+		return Result{}, impossible(p.at, "%s", m.Unidentified)
+	}
+	unit := m.UnitMM
+	t, st, ok := inverse(ph.Params, p.es, unit, reading)
+	if !ok {
+		return Result{}, impossible(at, "reading %g is beyond what the tool model can produce for a %s spoke; check the reading and the section", reading, p.sec.describe())
+	}
+	g := make([]float64, len(ph.Params))
+	drdT := gradient(ph.Params, p.es, unit, st, g)
+	if !(drdT > 0) {
+		return Result{}, impossible(at, "the tool model's curve is not monotone at reading %g for this section; no tension is given", reading)
+	}
+	w := p.halfWidthUnits(g)
+	lo, hi, err := p.interval(reading, w, g, st.teff, at)
+	if err != nil {
+		return Result{}, err
+	}
+	res.TensionN, res.IntervalN = t, [2]float64{lo, hi}
+	res.ResolutionNPerUnit = 1 / drdT
+	res.Method = MethodModel
+	if p.es.iC >= 0 {
+		res.Method = MethodModelRefined
+	}
+	res.Status = p.modelStatus(t)
+	res.SensitivityNPer001MM = p.sensitivityFrom(reading, st.teff)
+	p.finish(&res.Reliable, &res.Warnings, &res.Cautions, t, res.IntervalN, res.ResolutionNPerUnit, res.Status)
+	res.TensionKgf, res.TensionLbf = KgfFromN(t), LbfFromN(t)
+	return res, nil
+}
+
+// interval solves the inverse-prediction set {T : |r − r̂(T)| ≤ w(T)},
+// starting from the half-width at the estimate and re-evaluating it once
+// at each end.
+func (p *prepared) interval(reading, w0 float64, g []float64, teGuess float64, at string) (lo, hi float64, err error) {
+	ph, unit := p.m.Physical, p.m.UnitMM
+	end := func(sign float64, w float64) (float64, bool) {
+		t, st, ok := inverseFrom(ph.Params, p.es, unit, reading+sign*w, teGuess)
+		if !ok {
+			return 0, false
+		}
+		gradient(ph.Params, p.es, unit, st, g)
+		w2 := p.halfWidthUnits(g)
+		if t2, _, ok := inverseFrom(ph.Params, p.es, unit, reading+sign*w2, st.teff); ok {
+			return t2, true
+		}
+		return t, true
+	}
+	lo, okLo := end(-1, w0)
+	if !okLo {
+		lo = 0 // the band reaches slack spoke
+	}
+	hi, okHi := end(+1, w0)
+	if !okHi {
+		return 0, 0, impossible(at, "reading %g is within the uncertainty band of the highest reading the tool model can produce for this section; the tension has no upper bound", reading)
+	}
+	return lo, hi, nil
+}
+
+// modelStatus is interpolated inside the envelope of calibrated sections
+// and tensions, extrapolated otherwise.
+func (p *prepared) modelStatus(t float64) string {
+	r := p.m.TensionRangeN
+	if p.inside && p.col < 0 && t >= r[0] && t <= r[1] {
+		return StatusInterpolated
+	}
+	return StatusExtrapolated
+}
+
+// finish adds the result-level warnings and cautions.
+func (p *prepared) finish(reliable *bool, warns *[]Warning, cauts *[]string, t float64, iv [2]float64, resolution float64, status string) {
+	rng := p.m.TensionRangeN
+	if t < rng[0] || t > rng[1] {
+		*warns = append(*warns, Warning{WarnOutsideTensionRange, "warning", fmt.Sprintf(
+			"%.0f N lies outside the calibrated tensions %.0f–%.0f N", t, rng[0], rng[1])})
+	}
+	if t > 0 && resolution/t > resolutionMax {
+		*warns = append(*warns, Warning{WarnCoarseResolution, "warning", fmt.Sprintf(
+			"one dial unit is %.0f N here (%.1f %% of the tension, beyond %.0f %%): read carefully and average several readings", resolution, 100*resolution/t, 100*resolutionMax)})
+	}
+	hw := (iv[1] - iv[0]) / 2
+	wide := !(t > 0) || hw/t > halfWidthMax
+	if wide {
+		*warns = append(*warns, Warning{WarnUnreliable, "warning", fmt.Sprintf(
+			"the 95 %% interval is ±%.0f N (%.1f %% of the tension, beyond %.0f %%)", hw, 100*hw/math.Max(t, 1e-9), 100*halfWidthMax)})
+	}
+	if wide || p.unrel {
+		*reliable = false
+		*cauts = append(*cauts, fmt.Sprintf("Do not use %.0f N as a bare number: the true tension may lie anywhere in %.0f–%.0f N. Calibrate this spoke size against known tensions before building to it.", t, iv[0], iv[1]))
+	}
+	if status == StatusExtrapolated {
+		*cauts = append(*cauts, "This conversion is extrapolated beyond the calibration (another section, material or tension range); check it against a known tension before relying on it, since a wrongly tensioned wheel can fail.")
+	}
+	for _, w := range p.m.Warnings {
+		if w.Code == WarnSpanMismatch || w.Code == WarnModelMarginal {
+			*warns = append(*warns, w)
+		}
+	}
+}
+
+// Target returns the reading at which the section reaches tensionN.
+// Errors are *FieldError with pointers "/spoke…" and "/target_tension_n".
+func (m *Model) Target(spec SpokeSpec, tensionN float64) (Target, error) {
+	p, err := m.prepare(spec, "/spoke")
+	if err != nil {
+		return Target{}, err
+	}
+	return p.target(tensionN, "/target_tension_n")
+}
+
+func (p *prepared) target(tn float64, at string) (Target, error) {
+	m := p.m
+	if !finite(tn) || tn <= 0 || tn > maxTensionN {
+		return Target{}, badField(at, "the target tension must be positive and at most %d N", maxTensionN)
+	}
+	tg := Target{TensionN: tn, TensionKgf: KgfFromN(tn), TensionLbf: LbfFromN(tn), Reliable: true,
+		StiffnessRatio: p.ratio, DeltaDiameterMM: p.deltaD,
+		Warnings: append([]Warning{}, p.secWarns...), Cautions: append([]string{}, p.secCauts...)}
+	if p.col >= 0 && m.Columns[p.col].Curve != nil {
+		cv := m.Columns[p.col].Curve.cubic()
+		if r, ok := cv.invert(tn); ok {
+			w, resOnly := p.columnHalfWidth()
+			tg.Status, tg.Method = StatusInterpolated, MethodColumn
+			for i, y := range cv.Y {
+				if y == tn {
+					tg.Status, r = StatusCalibrated, cv.X[i]
+				}
+			}
+			_, slope := cv.at(r)
+			tg.Reading, tg.ReadingInterval, tg.ResolutionNPerUnit = r, [2]float64{r - w, r + w}, slope
+			lo, _ := cv.at(r - w)
+			hi, _ := cv.at(r + w)
+			if resOnly {
+				tg.Warnings = append(tg.Warnings, Warning{WarnResolutionOnlyInterval, "info",
+					"without a fitted tool model the interval covers only the dial's half-unit reading resolution"})
+			}
+			tg.SensitivityNPer001MM = p.sensitivity(r)
+			p.finish(&tg.Reliable, &tg.Warnings, &tg.Cautions, tn, [2]float64{math.Max(lo, 0), hi}, slope, tg.Status)
+			return tg, nil
+		}
+	}
+	ph := m.Physical
+	if ph == nil {
+		if p.col >= 0 {
+			return Target{}, impossible(at, "%g N is outside the calibrated column's table and the calibration cannot identify a tool model to go beyond it: %s", tn, m.Unidentified)
+		}
+		return Target{}, impossible(p.at, "%s", m.Unidentified)
+	}
+	unit := m.UnitMM
+	r, st, ok := forward(ph.Params, p.es, unit, tn)
+	if !ok {
+		return Target{}, impossible(at, "the tool model cannot reach %g N on a %s spoke", tn, p.sec.describe())
+	}
+	g := make([]float64, len(ph.Params))
+	drdT := gradient(ph.Params, p.es, unit, st, g)
+	if !(drdT > 0) {
+		return Target{}, impossible(at, "the tool model's curve is not monotone at %g N for this section", tn)
+	}
+	w := p.halfWidthUnits(g)
+	tg.Reading, tg.ReadingInterval = r, [2]float64{r - w, r + w}
+	tg.ResolutionNPerUnit = 1 / drdT
+	tg.Method = MethodModel
+	if p.es.iC >= 0 {
+		tg.Method = MethodModelRefined
+	}
+	tg.Status = p.modelStatus(tn)
+	tg.SensitivityNPer001MM = p.sensitivity(r)
+	// The tension interval this reading band implies, for the reliability test.
+	lo, hi := tn-w/drdT, tn+w/drdT
+	p.finish(&tg.Reliable, &tg.Warnings, &tg.Cautions, tn, [2]float64{math.Max(lo, 0), hi}, tg.ResolutionNPerUnit, tg.Status)
+	return tg, nil
+}
