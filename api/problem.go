@@ -64,6 +64,7 @@ var statusOf = []struct {
 	{service.ErrPreconditionFailed, http.StatusPreconditionFailed},
 	{service.ErrPreconditionRequired, http.StatusPreconditionRequired},
 	{service.ErrUnavailable, http.StatusServiceUnavailable},
+	{service.ErrGone, http.StatusGone},
 }
 
 // collectFieldErrors walks err's tree (errors.Join included) for field errors.

@@ -35,6 +35,8 @@ func (s *Server) routeTable(g prometheus.Gatherer) []Route {
 		// Not idempotent by key: a replay would have to keep the secret.
 		{Method: http.MethodPost, Path: "/v1/api-keys", Role: service.RoleAdmin, handler: s.createAPIKey},
 		{Method: http.MethodDelete, Path: "/v1/api-keys/{id}", Role: service.RoleAdmin, handler: s.revokeAPIKey},
+
+		{Method: http.MethodGet, Path: "/v1/changes", Role: service.RoleRead, handler: s.listChanges},
 	}
 }
 

@@ -31,6 +31,11 @@ type Store interface {
 	RevokeAPIKey(ctx context.Context, orgID, id uuid.UUID) (APIKey, error)
 	RevokeAPIKeyByPrefix(ctx context.Context, prefix string) (APIKey, error)
 
+	// ListChanges returns committed changes after q.After, only from
+	// transactions below the current snapshot's xmin; ErrCursorExpired when
+	// q.After is older than the retained feed.
+	ListChanges(ctx context.Context, orgID uuid.UUID, q ChangeQuery) ([]Change, error)
+
 	// RunIdempotent runs fn in one transaction with the key's record; see
 	// Service.RunIdempotent. replayed is true when the stored response is
 	// returned without running fn.

@@ -54,15 +54,15 @@ type Organisation struct {
 
 // Location is one of an organisation's shops.
 type Location struct {
-	ID        uuid.UUID
-	OrgID     uuid.UUID
-	Name      string
-	Code      string
-	Timezone  string
-	Address   string
-	Version   int64
-	CreatedAt time.Time
-	UpdatedAt time.Time
+	ID        uuid.UUID `json:"id"`
+	OrgID     uuid.UUID `json:"-"`
+	Name      string    `json:"name"`
+	Code      string    `json:"code"`
+	Timezone  string    `json:"timezone"`
+	Address   string    `json:"address"`
+	Version   int64     `json:"-"`
+	CreatedAt time.Time `json:"created_at"`
+	UpdatedAt time.Time `json:"updated_at"`
 }
 
 // ETag is the location's entity tag for optimistic concurrency.

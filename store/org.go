@@ -39,8 +39,12 @@ func scanLocation(row pgx.CollectableRow) (service.Location, error) {
 func (s *Store) CreateLocation(ctx context.Context, l service.Location) (err error) {
 	defer wrap(&err, "create location")
 	const q = `INSERT INTO locations (` + locationColumns + `) VALUES ($1, $2, $3, $4, $5, $6, $7, $8, $9)`
-	_, err = s.db(ctx).Exec(ctx, q, l.OrgID, l.ID, l.Name, l.Code, l.Timezone, l.Address, l.Version, l.CreatedAt, l.UpdatedAt)
-	return err
+	return s.inTx(ctx, func(tx pgx.Tx) error {
+		if _, err := tx.Exec(ctx, q, l.OrgID, l.ID, l.Name, l.Code, l.Timezone, l.Address, l.Version, l.CreatedAt, l.UpdatedAt); err != nil {
+			return err
+		}
+		return recordChange(ctx, tx, l.OrgID, service.Change{Type: "location.created", ResourceID: l.ID, LocationID: &l.ID, Data: l})
+	})
 }
 
 // GetLocation reads one of orgID's locations.
@@ -68,10 +72,16 @@ func (s *Store) UpdateLocation(ctx context.Context, orgID, id uuid.UUID, version
 	    version = version + 1, updated_at = now()
 	  WHERE org_id = $1 AND id = $2 AND version = $3
 	  RETURNING ` + locationColumns
-	rows, _ := s.db(ctx).Query(ctx, q, orgID, id, version, p.Name, p.Code, p.Timezone, p.Address)
-	l, err = pgx.CollectExactlyOneRow(rows, scanLocation)
-	if errors.Is(err, pgx.ErrNoRows) {
-		return l, service.ErrPreconditionFailed
-	}
+	err = s.inTx(ctx, func(tx pgx.Tx) error {
+		rows, _ := tx.Query(ctx, q, orgID, id, version, p.Name, p.Code, p.Timezone, p.Address)
+		l, err = pgx.CollectExactlyOneRow(rows, scanLocation)
+		if errors.Is(err, pgx.ErrNoRows) {
+			return service.ErrPreconditionFailed
+		}
+		if err != nil {
+			return err
+		}
+		return recordChange(ctx, tx, orgID, service.Change{Type: "location.updated", ResourceID: l.ID, LocationID: &l.ID, Data: l})
+	})
 	return l, err
 }

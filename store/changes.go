@@ -1,0 +1,81 @@
+package store
+
+import (
+	"context"
+	"encoding/json"
+	"strconv"
+
+	"github.com/google/uuid"
+	"github.com/jackc/pgx/v5"
+
+	"wheelbench/service"
+)
+
+// recordChange appends c to the feed on q — the transaction of the change.
+func recordChange(ctx context.Context, q querier, orgID uuid.UUID, c service.Change) error {
+	data, err := json.Marshal(c.Data)
+	if err != nil {
+		return err
+	}
+	const ins = `INSERT INTO changes (org_id, type, resource_id, location_id, data) VALUES ($1, $2, $3, $4, $5)`
+	_, err = q.Exec(ctx, ins, orgID, c.Type, c.ResourceID, c.LocationID, data)
+	return err
+}
+
+// ListChanges implements service.Store. Rows are served in (txid, seq)
+// order and only from transactions below the snapshot's xmin: every such
+// transaction has ended, so no row can later appear before the cursor.
+func (s *Store) ListChanges(ctx context.Context, orgID uuid.UUID, q service.ChangeQuery) (cs []service.Change, err error) {
+	defer wrap(&err, "list changes")
+	if q.After != (service.Cursor{}) {
+		var expired bool
+		const qh = `SELECT EXISTS (SELECT 1 FROM change_horizons WHERE org_id = $1 AND (txid, seq) > ($2::text::xid8, $3))`
+		if err := s.db(ctx).QueryRow(ctx, qh, orgID, strconv.FormatUint(q.After.TxID, 10), q.After.Seq).Scan(&expired); err != nil {
+			return nil, err
+		}
+		if expired {
+			return nil, service.ErrCursorExpired
+		}
+	}
+	var resources []string
+	if len(q.Resources) > 0 {
+		resources = q.Resources
+	}
+	const ql = `SELECT txid::text, seq, type, resource_id, location_id, occurred_at, data FROM changes
+	  WHERE org_id = $1 AND (txid, seq) > ($2::text::xid8, $3)
+	    AND txid < pg_snapshot_xmin(pg_current_snapshot())
+	    AND ($4::text[] IS NULL OR split_part(type, '.', 1) = ANY ($4))
+	  ORDER BY txid, seq LIMIT $5`
+	rows, _ := s.db(ctx).Query(ctx, ql, orgID, strconv.FormatUint(q.After.TxID, 10), q.After.Seq, resources, q.Limit)
+	return pgx.CollectRows(rows, func(row pgx.CollectableRow) (service.Change, error) {
+		var c service.Change
+		var tx string
+		var data json.RawMessage
+		if err := row.Scan(&tx, &c.Cursor.Seq, &c.Type, &c.ResourceID, &c.LocationID, &c.OccurredAt, &data); err != nil {
+			return c, err
+		}
+		c.Cursor.TxID, err = strconv.ParseUint(tx, 10, 64)
+		c.Data = data
+		return c, err
+	})
+}
+
+// PruneChanges deletes each organisation's changes older than the
+// retention and moves its horizon, so older cursors get 410.
+func (s *Store) PruneChanges(ctx context.Context, olderThanSeconds int64) (n int64, err error) {
+	defer wrap(&err, "prune changes")
+	err = s.inTx(ctx, func(tx pgx.Tx) error {
+		const q = `WITH gone AS (
+		    DELETE FROM changes WHERE occurred_at < now() - make_interval(secs => $1)
+		    RETURNING org_id, txid, seq),
+		  last AS (SELECT DISTINCT ON (org_id) org_id, txid, seq FROM gone ORDER BY org_id, txid DESC, seq DESC),
+		  moved AS (
+		    INSERT INTO change_horizons (org_id, txid, seq) SELECT org_id, txid, seq FROM last
+		    ON CONFLICT (org_id) DO UPDATE SET txid = EXCLUDED.txid, seq = EXCLUDED.seq
+		      WHERE (change_horizons.txid, change_horizons.seq) < (EXCLUDED.txid, EXCLUDED.seq)
+		    RETURNING 1)
+		  SELECT count(*) FROM gone`
+		return tx.QueryRow(ctx, q, olderThanSeconds).Scan(&n)
+	})
+	return n, err
+}
