@@ -11,17 +11,18 @@ import (
 )
 
 type locationJSON struct {
-	ID        uuid.UUID `json:"id"`
-	Name      string    `json:"name"`
-	Code      string    `json:"code"`
-	Timezone  string    `json:"timezone"`
-	Address   string    `json:"address"`
-	CreatedAt time.Time `json:"created_at"`
-	UpdatedAt time.Time `json:"updated_at"`
+	ID         uuid.UUID `json:"id"`
+	Name       string    `json:"name"`
+	Code       string    `json:"code"`
+	Timezone   string    `json:"timezone"`
+	Address    string    `json:"address"`
+	TaxRatePPM int64     `json:"tax_rate_ppm"`
+	CreatedAt  time.Time `json:"created_at"`
+	UpdatedAt  time.Time `json:"updated_at"`
 }
 
 func toLocationJSON(l service.Location) locationJSON {
-	return locationJSON{ID: l.ID, Name: l.Name, Code: l.Code, Timezone: l.Timezone, Address: l.Address,
+	return locationJSON{ID: l.ID, Name: l.Name, Code: l.Code, Timezone: l.Timezone, Address: l.Address, TaxRatePPM: l.TaxRatePPM,
 		CreatedAt: l.CreatedAt.UTC(), UpdatedAt: l.UpdatedAt.UTC()}
 }
 
@@ -75,10 +76,11 @@ func (s *Server) listLocations(c echo.Context) error {
 }
 
 type locationCreateJSON struct {
-	Name     string `json:"name"`
-	Code     string `json:"code"`
-	Timezone string `json:"timezone"`
-	Address  string `json:"address"`
+	Name       string `json:"name"`
+	Code       string `json:"code"`
+	Timezone   string `json:"timezone"`
+	Address    string `json:"address"`
+	TaxRatePPM int64  `json:"tax_rate_ppm"`
 }
 
 func (s *Server) createLocation(c echo.Context) error {
@@ -87,7 +89,7 @@ func (s *Server) createLocation(c echo.Context) error {
 		return err
 	}
 	l, err := s.svc.CreateLocation(c.Request().Context(), principal(c), service.LocationInput{
-		Name: in.Name, Code: in.Code, Timezone: in.Timezone, Address: in.Address})
+		Name: in.Name, Code: in.Code, Timezone: in.Timezone, Address: in.Address, TaxRatePPM: in.TaxRatePPM})
 	if err != nil {
 		return err
 	}
@@ -110,10 +112,11 @@ func (s *Server) getLocation(c echo.Context) error {
 }
 
 type locationPatchJSON struct {
-	Name     *string `json:"name"`
-	Code     *string `json:"code"`
-	Timezone *string `json:"timezone"`
-	Address  *string `json:"address"`
+	Name       *string `json:"name"`
+	Code       *string `json:"code"`
+	Timezone   *string `json:"timezone"`
+	Address    *string `json:"address"`
+	TaxRatePPM *int64  `json:"tax_rate_ppm"`
 }
 
 func (s *Server) updateLocation(c echo.Context) error {
@@ -126,7 +129,7 @@ func (s *Server) updateLocation(c echo.Context) error {
 		return err
 	}
 	l, err := s.svc.UpdateLocation(c.Request().Context(), principal(c), id, c.Request().Header.Get("If-Match"),
-		service.LocationPatch{Name: in.Name, Code: in.Code, Timezone: in.Timezone, Address: in.Address})
+		service.LocationPatch{Name: in.Name, Code: in.Code, Timezone: in.Timezone, Address: in.Address, TaxRatePPM: in.TaxRatePPM})
 	if err != nil {
 		return err
 	}

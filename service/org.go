@@ -74,15 +74,19 @@ func (s *Service) WhoAmI(ctx context.Context, p Principal) (Me, error) {
 
 // LocationInput is what creating a location takes.
 type LocationInput struct {
-	ID       uuid.UUID // optional: zero means a new id
-	Name     string
-	Code     string
-	Timezone string
-	Address  string
+	ID         uuid.UUID // optional: zero means a new id
+	Name       string
+	Code       string
+	Timezone   string
+	Address    string
+	TaxRatePPM int64
 }
 
-func validateLocationFields(name, code, tz, address *string) error {
+func validateLocationFields(name, code, tz, address *string, taxPPM *int64) error {
 	var errs []error
+	if taxPPM != nil && (*taxPPM < 0 || *taxPPM > 1_000_000) {
+		errs = append(errs, Invalid("/tax_rate_ppm", "tax_rate_ppm must be from 0 to 1000000 (parts per million)"))
+	}
 	if name != nil {
 		if n := strings.TrimSpace(*name); n == "" || utf8.RuneCountInString(n) > 200 {
 			errs = append(errs, Invalid("/name", "name must be 1 to 200 characters"))
@@ -104,7 +108,7 @@ func validateLocationFields(name, code, tz, address *string) error {
 
 // CreateLocation adds a location to the caller's organisation.
 func (s *Service) CreateLocation(ctx context.Context, p Principal, in LocationInput) (Location, error) {
-	if err := validateLocationFields(&in.Name, &in.Code, &in.Timezone, &in.Address); err != nil {
+	if err := validateLocationFields(&in.Name, &in.Code, &in.Timezone, &in.Address, &in.TaxRatePPM); err != nil {
 		return Location{}, err
 	}
 	id := in.ID
@@ -119,7 +123,7 @@ func (s *Service) CreateLocation(ctx context.Context, p Principal, in LocationIn
 	}
 	now := s.now().UTC()
 	l := Location{ID: id, OrgID: p.OrgID, Name: strings.TrimSpace(in.Name), Code: in.Code,
-		Timezone: in.Timezone, Address: in.Address, Version: 1, CreatedAt: now, UpdatedAt: now}
+		Timezone: in.Timezone, Address: in.Address, TaxRatePPM: in.TaxRatePPM, Version: 1, CreatedAt: now, UpdatedAt: now}
 	if err := s.store.CreateLocation(ctx, l); err != nil {
 		return Location{}, fmt.Errorf("create location: %w", err)
 	}
@@ -138,7 +142,7 @@ func (s *Service) ListLocations(ctx context.Context, p Principal, page Page) ([]
 
 // UpdateLocation applies patch if ifMatch is the location's current ETag.
 func (s *Service) UpdateLocation(ctx context.Context, p Principal, id uuid.UUID, ifMatch string, patch LocationPatch) (Location, error) {
-	if err := validateLocationFields(patch.Name, patch.Code, patch.Timezone, patch.Address); err != nil {
+	if err := validateLocationFields(patch.Name, patch.Code, patch.Timezone, patch.Address, patch.TaxRatePPM); err != nil {
 		return Location{}, err
 	}
 	cur, err := s.store.GetLocation(ctx, p.OrgID, id)

@@ -54,15 +54,17 @@ type Organisation struct {
 
 // Location is one of an organisation's shops.
 type Location struct {
-	ID        uuid.UUID `json:"id"`
-	OrgID     uuid.UUID `json:"-"`
-	Name      string    `json:"name"`
-	Code      string    `json:"code"`
-	Timezone  string    `json:"timezone"`
-	Address   string    `json:"address"`
-	Version   int64     `json:"-"`
-	CreatedAt time.Time `json:"created_at"`
-	UpdatedAt time.Time `json:"updated_at"`
+	ID       uuid.UUID `json:"id"`
+	OrgID    uuid.UUID `json:"-"`
+	Name     string    `json:"name"`
+	Code     string    `json:"code"`
+	Timezone string    `json:"timezone"`
+	Address  string    `json:"address"`
+	// TaxRatePPM is the sales tax on quotes, in parts per million (200000 = 20 %).
+	TaxRatePPM int64     `json:"tax_rate_ppm"`
+	Version    int64     `json:"-"`
+	CreatedAt  time.Time `json:"created_at"`
+	UpdatedAt  time.Time `json:"updated_at"`
 }
 
 // ETag is the location's entity tag for optimistic concurrency.
@@ -75,10 +77,11 @@ func ETag(id uuid.UUID, version int64) string {
 
 // LocationPatch holds the fields a PATCH may change; nil leaves a field.
 type LocationPatch struct {
-	Name     *string
-	Code     *string
-	Timezone *string
-	Address  *string
+	Name       *string
+	Code       *string
+	Timezone   *string
+	Address    *string
+	TaxRatePPM *int64
 }
 
 // APIKey is a stored key: only its hash and a display prefix are kept.

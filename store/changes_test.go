@@ -187,10 +187,7 @@ func TestChangeCursorExpires(t *testing.T) {
 			t.Fatal(err)
 		}
 	}
-	cs, err := st.ListChanges(ctx, org, service.ChangeQuery{Limit: 10})
-	if err != nil || len(cs) != 3 {
-		t.Fatalf("%v %v", cs, err)
-	}
+	cs := waitChanges(t, st, org, 3)
 	first := cs[0].Cursor
 	if _, err := pool.Exec(ctx, `UPDATE changes SET occurred_at = now() - interval '40 days'`); err != nil {
 		t.Fatal(err)
@@ -213,4 +210,24 @@ func insertChange(ctx context.Context, q interface {
 }, org uuid.UUID, data string) error {
 	_, err := q.Exec(ctx, `INSERT INTO changes (org_id, type, resource_id, data) VALUES ($1, 'build.created', $2, $3::jsonb)`, org, uuid.New(), data)
 	return err
+}
+
+// waitChanges polls the feed until it serves n changes: transactions of
+// other tests on the same server may hold the snapshot's xmin back briefly.
+func waitChanges(t *testing.T, st *store.Store, org uuid.UUID, n int) []service.Change {
+	t.Helper()
+	deadline := time.Now().Add(20 * time.Second)
+	for {
+		cs, err := st.ListChanges(context.Background(), org, service.ChangeQuery{Limit: 100})
+		if err != nil {
+			t.Fatal(err)
+		}
+		if len(cs) >= n {
+			return cs
+		}
+		if time.Now().After(deadline) {
+			t.Fatalf("feed served %d changes, want %d", len(cs), n)
+		}
+		time.Sleep(20 * time.Millisecond)
+	}
 }

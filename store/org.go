@@ -27,20 +27,20 @@ func (s *Store) GetOrganisation(ctx context.Context, id uuid.UUID) (o service.Or
 	return o, err
 }
 
-const locationColumns = `org_id, id, name, code, timezone, address, version, created_at, updated_at`
+const locationColumns = `org_id, id, name, code, timezone, address, tax_rate_ppm, version, created_at, updated_at`
 
 func scanLocation(row pgx.CollectableRow) (service.Location, error) {
 	var l service.Location
-	err := row.Scan(&l.OrgID, &l.ID, &l.Name, &l.Code, &l.Timezone, &l.Address, &l.Version, &l.CreatedAt, &l.UpdatedAt)
+	err := row.Scan(&l.OrgID, &l.ID, &l.Name, &l.Code, &l.Timezone, &l.Address, &l.TaxRatePPM, &l.Version, &l.CreatedAt, &l.UpdatedAt)
 	return l, err
 }
 
 // CreateLocation inserts l.
 func (s *Store) CreateLocation(ctx context.Context, l service.Location) (err error) {
 	defer wrap(&err, "create location")
-	const q = `INSERT INTO locations (` + locationColumns + `) VALUES ($1, $2, $3, $4, $5, $6, $7, $8, $9)`
+	const q = `INSERT INTO locations (` + locationColumns + `) VALUES ($1, $2, $3, $4, $5, $6, $7, $8, $9, $10)`
 	return s.inTx(ctx, func(tx pgx.Tx) error {
-		if _, err := tx.Exec(ctx, q, l.OrgID, l.ID, l.Name, l.Code, l.Timezone, l.Address, l.Version, l.CreatedAt, l.UpdatedAt); err != nil {
+		if _, err := tx.Exec(ctx, q, l.OrgID, l.ID, l.Name, l.Code, l.Timezone, l.Address, l.TaxRatePPM, l.Version, l.CreatedAt, l.UpdatedAt); err != nil {
 			return err
 		}
 		return recordChange(ctx, tx, l.OrgID, service.Change{Type: "location.created", ResourceID: l.ID, LocationID: &l.ID, Data: l})
@@ -69,11 +69,12 @@ func (s *Store) UpdateLocation(ctx context.Context, orgID, id uuid.UUID, version
 	const q = `UPDATE locations SET
 	    name = COALESCE($4, name), code = COALESCE($5, code),
 	    timezone = COALESCE($6, timezone), address = COALESCE($7, address),
+	    tax_rate_ppm = COALESCE($8, tax_rate_ppm),
 	    version = version + 1, updated_at = now()
 	  WHERE org_id = $1 AND id = $2 AND version = $3
 	  RETURNING ` + locationColumns
 	err = s.inTx(ctx, func(tx pgx.Tx) error {
-		rows, _ := tx.Query(ctx, q, orgID, id, version, p.Name, p.Code, p.Timezone, p.Address)
+		rows, _ := tx.Query(ctx, q, orgID, id, version, p.Name, p.Code, p.Timezone, p.Address, p.TaxRatePPM)
 		l, err = pgx.CollectExactlyOneRow(rows, scanLocation)
 		if errors.Is(err, pgx.ErrNoRows) {
 			return service.ErrPreconditionFailed
