@@ -36,6 +36,13 @@ func (s *Server) routeTable(g prometheus.Gatherer) []Route {
 		{Method: http.MethodPost, Path: "/v1/api-keys", Role: service.RoleAdmin, handler: s.createAPIKey},
 		{Method: http.MethodDelete, Path: "/v1/api-keys/{id}", Role: service.RoleAdmin, handler: s.revokeAPIKey},
 
+		{Method: http.MethodGet, Path: "/v1/parts", Role: service.RoleRead, handler: s.listParts},
+		{Method: http.MethodPost, Path: "/v1/parts", Role: service.RoleWrite, Idempotent: true, handler: s.createPart},
+		{Method: http.MethodGet, Path: "/v1/parts/{id}", Role: service.RoleRead, handler: s.getPart},
+		{Method: http.MethodPatch, Path: "/v1/parts/{id}", Role: service.RoleWrite, handler: s.updatePart},
+		{Method: http.MethodGet, Path: "/v1/parts/{id}/stock", Role: service.RoleRead, handler: s.getPartStock},
+		{Method: http.MethodPut, Path: "/v1/parts/{id}/stock", Role: service.RoleWrite, handler: s.putPartStock},
+
 		{Method: http.MethodGet, Path: "/v1/changes", Role: service.RoleRead, handler: s.listChanges},
 	}
 }

@@ -36,6 +36,14 @@ type Store interface {
 	// q.After is older than the retained feed.
 	ListChanges(ctx context.Context, orgID uuid.UUID, q ChangeQuery) ([]Change, error)
 
+	CreatePart(ctx context.Context, p Part) error
+	GetPart(ctx context.Context, orgID, id uuid.UUID) (Part, error)
+	ListParts(ctx context.Context, orgID uuid.UUID, f PartFilter, p Page) ([]Part, error)
+	UpdatePart(ctx context.Context, orgID, id uuid.UUID, version int64, p PartPatch) (Part, error)
+	GetPartStock(ctx context.Context, orgID, partID uuid.UUID) (PartStock, error)
+	// PutPartStock replaces the levels when the stock is still at version.
+	PutPartStock(ctx context.Context, orgID, partID uuid.UUID, version int64, levels []StockLevel) (PartStock, error)
+
 	// RunIdempotent runs fn in one transaction with the key's record; see
 	// Service.RunIdempotent. replayed is true when the stored response is
 	// returned without running fn.

@@ -1,0 +1,121 @@
+package store
+
+import (
+	"context"
+	"errors"
+
+	"github.com/google/uuid"
+	"github.com/jackc/pgx/v5"
+
+	"wheelbench/service"
+)
+
+const partColumns = `org_id, id, kind, sku, name, price_minor, currency, dimensions, version, created_at, updated_at`
+
+func scanPart(row pgx.CollectableRow) (service.Part, error) {
+	var p service.Part
+	var kind string
+	err := row.Scan(&p.OrgID, &p.ID, &kind, &p.SKU, &p.Name, &p.PriceMinor, &p.Currency, &p.Dimensions, &p.Version, &p.CreatedAt, &p.UpdatedAt)
+	p.Kind = service.PartKind(kind)
+	return p, err
+}
+
+// CreatePart inserts p and its change-feed row.
+func (s *Store) CreatePart(ctx context.Context, p service.Part) (err error) {
+	defer wrap(&err, "create part")
+	const q = `INSERT INTO parts (` + partColumns + `) VALUES ($1, $2, $3, $4, $5, $6, $7, $8, $9, $10, $11)`
+	return s.inTx(ctx, func(tx pgx.Tx) error {
+		if _, err := tx.Exec(ctx, q, p.OrgID, p.ID, string(p.Kind), p.SKU, p.Name, p.PriceMinor, p.Currency, []byte(p.Dimensions), p.Version, p.CreatedAt, p.UpdatedAt); err != nil {
+			return err
+		}
+		return recordChange(ctx, tx, p.OrgID, service.Change{Type: "part.created", ResourceID: p.ID, Data: p})
+	})
+}
+
+// GetPart reads one of orgID's parts.
+func (s *Store) GetPart(ctx context.Context, orgID, id uuid.UUID) (p service.Part, err error) {
+	defer wrap(&err, "get part")
+	rows, _ := s.db(ctx).Query(ctx, `SELECT `+partColumns+` FROM parts WHERE org_id = $1 AND id = $2`, orgID, id)
+	return pgx.CollectExactlyOneRow(rows, scanPart)
+}
+
+// ListParts lists orgID's parts by id, optionally of one kind or SKU.
+func (s *Store) ListParts(ctx context.Context, orgID uuid.UUID, f service.PartFilter, p service.Page) (ps []service.Part, err error) {
+	defer wrap(&err, "list parts")
+	const q = `SELECT ` + partColumns + ` FROM parts
+	  WHERE org_id = $1 AND id > $2 AND ($3 = '' OR kind = $3) AND ($4 = '' OR sku = $4)
+	  ORDER BY id LIMIT $5`
+	rows, _ := s.db(ctx).Query(ctx, q, orgID, p.After, string(f.Kind), f.SKU, p.Limit)
+	return pgx.CollectRows(rows, scanPart)
+}
+
+// UpdatePart applies p when the part is still at version.
+func (s *Store) UpdatePart(ctx context.Context, orgID, id uuid.UUID, version int64, p service.PartPatch) (out service.Part, err error) {
+	defer wrap(&err, "update part")
+	var dims []byte
+	if p.Dimensions != nil {
+		dims = p.Dimensions
+	}
+	const q = `UPDATE parts SET sku = COALESCE($4, sku), name = COALESCE($5, name),
+	    price_minor = COALESCE($6, price_minor), currency = COALESCE($7, currency),
+	    dimensions = COALESCE($8::jsonb, dimensions), version = version + 1, updated_at = now()
+	  WHERE org_id = $1 AND id = $2 AND version = $3 RETURNING ` + partColumns
+	err = s.inTx(ctx, func(tx pgx.Tx) error {
+		rows, _ := tx.Query(ctx, q, orgID, id, version, p.SKU, p.Name, p.PriceMinor, p.Currency, dims)
+		out, err = pgx.CollectExactlyOneRow(rows, scanPart)
+		if errors.Is(err, pgx.ErrNoRows) {
+			return service.ErrPreconditionFailed
+		}
+		if err != nil {
+			return err
+		}
+		return recordChange(ctx, tx, orgID, service.Change{Type: "part.updated", ResourceID: id, Data: out})
+	})
+	return out, err
+}
+
+// GetPartStock reads a part's stock levels.
+func (s *Store) GetPartStock(ctx context.Context, orgID, partID uuid.UUID) (st service.PartStock, err error) {
+	defer wrap(&err, "get part stock")
+	return s.partStock(ctx, s.db(ctx), orgID, partID)
+}
+
+func (s *Store) partStock(ctx context.Context, q querier, orgID, partID uuid.UUID) (service.PartStock, error) {
+	st := service.PartStock{PartID: partID}
+	if err := q.QueryRow(ctx, `SELECT stock_version FROM parts WHERE org_id = $1 AND id = $2`, orgID, partID).Scan(&st.Version); err != nil {
+		return st, err
+	}
+	rows, _ := q.Query(ctx, `SELECT location_id, length_mm::float8, quantity FROM part_stock
+	    WHERE org_id = $1 AND part_id = $2 ORDER BY location_id, length_mm`, orgID, partID)
+	levels, err := pgx.CollectRows(rows, pgx.RowToStructByPos[service.StockLevel])
+	st.Levels = levels
+	return st, err
+}
+
+// PutPartStock replaces the part's stock levels when still at version.
+func (s *Store) PutPartStock(ctx context.Context, orgID, partID uuid.UUID, version int64, levels []service.StockLevel) (st service.PartStock, err error) {
+	defer wrap(&err, "put part stock")
+	err = s.inTx(ctx, func(tx pgx.Tx) error {
+		tag, err := tx.Exec(ctx, `UPDATE parts SET stock_version = stock_version + 1 WHERE org_id = $1 AND id = $2 AND stock_version = $3`, orgID, partID, version)
+		if err != nil {
+			return err
+		}
+		if tag.RowsAffected() != 1 {
+			return service.ErrPreconditionFailed
+		}
+		if _, err := tx.Exec(ctx, `DELETE FROM part_stock WHERE org_id = $1 AND part_id = $2`, orgID, partID); err != nil {
+			return err
+		}
+		for _, l := range levels {
+			if _, err := tx.Exec(ctx, `INSERT INTO part_stock (org_id, part_id, location_id, length_mm, quantity) VALUES ($1, $2, $3, $4, $5)`,
+				orgID, partID, l.LocationID, l.LengthMM, l.Quantity); err != nil {
+				return err
+			}
+		}
+		if st, err = s.partStock(ctx, tx, orgID, partID); err != nil {
+			return err
+		}
+		return recordChange(ctx, tx, orgID, service.Change{Type: "part.stock_changed", ResourceID: partID, Data: st})
+	})
+	return st, err
+}
