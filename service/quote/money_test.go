@@ -78,7 +78,7 @@ func TestMulDivRoundMatchesBigRat(t *testing.T) {
 			return []int64{math.MinInt64, math.MaxInt64, 0, 1, -1, MaxAmountMinor}[rng.IntN(6)]
 		}
 	}
-	for range 200000 {
+	for range iterations(200000) {
 		a, b, d := pick(), pick(), pick()
 		if d <= 0 {
 			d = 1 + rng.Int64N(2*PPM)
@@ -103,7 +103,7 @@ func TestMulDivRoundMatchesBigRat(t *testing.T) {
 func TestMulAddAmountMatchBig(t *testing.T) {
 	rng := rand.New(rand.NewPCG(3, 4))
 	limit := big.NewInt(MaxAmountMinor)
-	for range 100000 {
+	for range iterations(100000) {
 		q := rng.Int64N(1 << uint(1+rng.IntN(62)))
 		p := rng.Int64N(1 << uint(1+rng.IntN(62)))
 		if rng.IntN(10) == 0 {
