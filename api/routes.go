@@ -44,6 +44,10 @@ func (s *Server) routeTable(g prometheus.Gatherer) []Route {
 		{Method: http.MethodPut, Path: "/v1/parts/{id}/stock", Role: service.RoleWrite, handler: s.putPartStock},
 
 		{Method: http.MethodGet, Path: "/v1/changes", Role: service.RoleRead, handler: s.listChanges},
+
+		{Method: http.MethodPost, Path: "/v1/spoke-lengths", Role: service.RoleRead, handler: s.computeSpokeLengths},
+		{Method: http.MethodPost, Path: "/v1/spoke-lengths/batch", Role: service.RoleRead, BodyLimit: BatchBodyLimit, handler: s.computeSpokeLengthsBatch},
+		{Method: http.MethodPost, Path: "/v1/compatibility-checks", Role: service.RoleRead, handler: s.checkCompatibility},
 	}
 }
 
