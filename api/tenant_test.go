@@ -18,6 +18,10 @@ type fixture func(e *env) (id uuid.UUID, body any)
 var fixtures = map[string]fixture{
 	"GET /v1/locations/{id}":   locationFixture(nil),
 	"PATCH /v1/locations/{id}": locationFixture(map[string]any{"name": "renamed"}),
+	"GET /v1/parts/{id}":       partFixture(nil),
+	"PATCH /v1/parts/{id}":     partFixture(map[string]any{"price_minor": 1}),
+	"GET /v1/parts/{id}/stock": partFixture(nil),
+	"PUT /v1/parts/{id}/stock": partFixture(map[string]any{"levels": []any{}}),
 	"DELETE /v1/api-keys/{id}": func(e *env) (uuid.UUID, any) {
 		k, err := e.svc.CreateAPIKey(e.t.Context(), e.orgA, service.NewKeyInput{Role: service.RoleRead})
 		if err != nil {
@@ -25,6 +29,12 @@ var fixtures = map[string]fixture{
 		}
 		return k.ID, nil
 	},
+}
+
+func partFixture(body any) fixture {
+	return func(e *env) (uuid.UUID, any) {
+		return e.createPart("tyre", "TYRE-"+uuid.NewString()[:8], 2500, tyreDims), body
+	}
 }
 
 func locationFixture(body any) fixture {
