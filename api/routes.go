@@ -43,6 +43,16 @@ func (s *Server) routeTable(g prometheus.Gatherer) []Route {
 		{Method: http.MethodGet, Path: "/v1/parts/{id}/stock", Role: service.RoleRead, handler: s.getPartStock},
 		{Method: http.MethodPut, Path: "/v1/parts/{id}/stock", Role: service.RoleWrite, handler: s.putPartStock},
 
+		{Method: http.MethodGet, Path: "/v1/builds", Role: service.RoleRead, handler: s.listBuilds},
+		{Method: http.MethodPost, Path: "/v1/builds", Role: service.RoleWrite, Idempotent: true, handler: s.createBuild},
+		{Method: http.MethodGet, Path: "/v1/builds/{id}", Role: service.RoleRead, handler: s.getBuild},
+		{Method: http.MethodPatch, Path: "/v1/builds/{id}", Role: service.RoleWrite, handler: s.updateBuild},
+		{Method: http.MethodGet, Path: "/v1/price-list", Role: service.RoleRead, handler: s.getPriceList},
+		{Method: http.MethodPut, Path: "/v1/price-list", Role: service.RoleAdmin, handler: s.putPriceList},
+		{Method: http.MethodPost, Path: "/v1/quotes", Role: service.RoleWrite, Idempotent: true, handler: s.createQuote},
+		{Method: http.MethodGet, Path: "/v1/quotes/{id}", Role: service.RoleRead, handler: s.getQuote},
+		{Method: http.MethodPost, Path: "/v1/quotes/{id}/accept", Role: service.RoleWrite, Idempotent: true, handler: s.acceptQuote},
+
 		{Method: http.MethodGet, Path: "/v1/changes", Role: service.RoleRead, handler: s.listChanges},
 
 		{Method: http.MethodPost, Path: "/v1/spoke-lengths", Role: service.RoleRead, handler: s.computeSpokeLengths},

@@ -16,12 +16,16 @@ type fixture func(e *env) (id uuid.UUID, body any)
 // fixtures is keyed by "METHOD path". Every route with an {id} must have
 // one: TestOtherOrganisationsIDs fails for a route that lacks it.
 var fixtures = map[string]fixture{
-	"GET /v1/locations/{id}":   locationFixture(nil),
-	"PATCH /v1/locations/{id}": locationFixture(map[string]any{"name": "renamed"}),
-	"GET /v1/parts/{id}":       partFixture(nil),
-	"PATCH /v1/parts/{id}":     partFixture(map[string]any{"price_minor": 1}),
-	"GET /v1/parts/{id}/stock": partFixture(nil),
-	"PUT /v1/parts/{id}/stock": partFixture(map[string]any{"levels": []any{}}),
+	"GET /v1/locations/{id}":      locationFixture(nil),
+	"PATCH /v1/locations/{id}":    locationFixture(map[string]any{"name": "renamed"}),
+	"GET /v1/parts/{id}":          partFixture(nil),
+	"PATCH /v1/parts/{id}":        partFixture(map[string]any{"price_minor": 1}),
+	"GET /v1/parts/{id}/stock":    partFixture(nil),
+	"PUT /v1/parts/{id}/stock":    partFixture(map[string]any{"levels": []any{}}),
+	"GET /v1/builds/{id}":         buildFixture(nil),
+	"PATCH /v1/builds/{id}":       buildFixture(map[string]any{"notes": "x"}),
+	"GET /v1/quotes/{id}":         quoteFixture(),
+	"POST /v1/quotes/{id}/accept": quoteFixture(),
 	"DELETE /v1/api-keys/{id}": func(e *env) (uuid.UUID, any) {
 		k, err := e.svc.CreateAPIKey(e.t.Context(), e.orgA, service.NewKeyInput{Role: service.RoleRead})
 		if err != nil {
@@ -34,6 +38,24 @@ var fixtures = map[string]fixture{
 func partFixture(body any) fixture {
 	return func(e *env) (uuid.UUID, any) {
 		return e.createPart("tyre", "TYRE-"+uuid.NewString()[:8], 2500, tyreDims), body
+	}
+}
+
+func buildFixture(body any) fixture {
+	return func(e *env) (uuid.UUID, any) {
+		s := e.newShop(1)
+		var b struct{ ID uuid.UUID }
+		e.want(e.do("POST", "/v1/builds", e.keyA[service.RoleWrite], map[string]any{"spec": s.spec(), "location_id": s.loc}), 201).json(e.t, &b)
+		return b.ID, body
+	}
+}
+
+func quoteFixture() fixture {
+	return func(e *env) (uuid.UUID, any) {
+		id, _ := buildFixture(nil)(e)
+		var q struct{ ID uuid.UUID }
+		e.want(e.do("POST", "/v1/quotes", e.keyA[service.RoleWrite], map[string]any{"build_id": id}), 201).json(e.t, &q)
+		return q.ID, nil
 	}
 }
 

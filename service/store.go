@@ -5,6 +5,8 @@ import (
 	"time"
 
 	"github.com/google/uuid"
+
+	"wheelbench/service/quote"
 )
 
 // Store is the persistence the service needs. store.Store implements it on
@@ -43,6 +45,25 @@ type Store interface {
 	GetPartStock(ctx context.Context, orgID, partID uuid.UUID) (PartStock, error)
 	// PutPartStock replaces the levels when the stock is still at version.
 	PutPartStock(ctx context.Context, orgID, partID uuid.UUID, version int64, levels []StockLevel) (PartStock, error)
+
+	CreateBuild(ctx context.Context, b Build) error
+	GetBuild(ctx context.Context, orgID, id uuid.UUID) (Build, error)
+	ListBuilds(ctx context.Context, orgID uuid.UUID, f BuildFilter, p Page) ([]Build, error)
+	// UpdateBuild applies the patch when the build is still at version (and
+	// so still at status from).
+	UpdateBuild(ctx context.Context, orgID, id uuid.UUID, version int64, from BuildStatus, p BuildPatch) (Build, error)
+
+	GetPriceList(ctx context.Context, orgID uuid.UUID) (PriceList, error)
+	// PutPriceList stores pl when the stored version is still version (0: none yet).
+	PutPriceList(ctx context.Context, orgID uuid.UUID, version int64, pl quote.PriceList) (PriceList, error)
+	// CreateQuote stores q, supersedes the build's open quotes and moves the
+	// build from status from to quoted.
+	CreateQuote(ctx context.Context, q Quote, from BuildStatus) error
+	GetQuote(ctx context.Context, orgID, id uuid.UUID) (Quote, error)
+	// AcceptQuote accepts an open, unexpired quote of a quoted build: takes
+	// its stock needs (ErrStockShort when any is short, nothing changed)
+	// and moves the build to ordered, in one transaction.
+	AcceptQuote(ctx context.Context, orgID, id uuid.UUID, now time.Time) (Quote, error)
 
 	// RunIdempotent runs fn in one transaction with the key's record; see
 	// Service.RunIdempotent. replayed is true when the stored response is
