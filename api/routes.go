@@ -53,6 +53,19 @@ func (s *Server) routeTable(g prometheus.Gatherer) []Route {
 		{Method: http.MethodGet, Path: "/v1/quotes/{id}", Role: service.RoleRead, handler: s.getQuote},
 		{Method: http.MethodPost, Path: "/v1/quotes/{id}/accept", Role: service.RoleWrite, Idempotent: true, handler: s.acceptQuote},
 
+		{Method: http.MethodGet, Path: "/v1/tools", Role: service.RoleRead, handler: s.listTools},
+		{Method: http.MethodPost, Path: "/v1/tools", Role: service.RoleWrite, Idempotent: true, handler: s.createTool},
+		{Method: http.MethodGet, Path: "/v1/tools/{id}", Role: service.RoleRead, handler: s.getTool},
+		{Method: http.MethodPatch, Path: "/v1/tools/{id}", Role: service.RoleWrite, handler: s.updateTool},
+		// Calibration versions are immutable: no PATCH or DELETE.
+		{Method: http.MethodGet, Path: "/v1/tools/{id}/calibrations", Role: service.RoleRead, handler: s.listCalibrations},
+		{Method: http.MethodPost, Path: "/v1/tools/{id}/calibrations", Role: service.RoleWrite, Idempotent: true, handler: s.publishCalibration},
+		{Method: http.MethodGet, Path: "/v1/calibrations/{id}", Role: service.RoleRead, handler: s.getCalibration},
+		{Method: http.MethodGet, Path: "/v1/calibrations/{id}/chart.svg", Role: service.RoleRead, handler: s.getCalibrationChart},
+		// The computations store nothing: read role, no Idempotency-Key.
+		{Method: http.MethodPost, Path: "/v1/tension-conversions", Role: service.RoleRead, handler: s.convertTension},
+		{Method: http.MethodPost, Path: "/v1/tension-audits", Role: service.RoleRead, handler: s.auditTension},
+
 		{Method: http.MethodGet, Path: "/v1/changes", Role: service.RoleRead, handler: s.listChanges},
 
 		{Method: http.MethodPost, Path: "/v1/spoke-lengths", Role: service.RoleRead, handler: s.computeSpokeLengths},

@@ -33,6 +33,12 @@ var fixtures = map[string]fixture{
 		}
 		return k.ID, nil
 	},
+	"GET /v1/tools/{id}":                  toolFixture(nil),
+	"PATCH /v1/tools/{id}":                toolFixture(map[string]any{"label": "renamed"}),
+	"GET /v1/tools/{id}/calibrations":     toolFixture(nil),
+	"POST /v1/tools/{id}/calibrations":    toolFixture(map[string]any{"columns": []any{map[string]any{"spoke": map[string]any{"diameter_mm": 2.0, "material": "stainless_steel"}, "points": []any{map[string]any{"tension_n": 800, "reading": 60}, map[string]any{"tension_n": 1200, "reading": 75}}}}}),
+	"GET /v1/calibrations/{id}":           calibrationFixture,
+	"GET /v1/calibrations/{id}/chart.svg": calibrationFixture,
 }
 
 func partFixture(body any) fixture {

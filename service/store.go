@@ -70,4 +70,19 @@ type Store interface {
 	// returned without running fn.
 	RunIdempotent(ctx context.Context, orgID uuid.UUID, req IdempotentRequest, expires time.Time,
 		fn func(ctx context.Context) (StoredResponse, error)) (resp StoredResponse, replayed bool, err error)
+
+	CreateTool(ctx context.Context, t Tool) error
+	GetTool(ctx context.Context, orgID, id uuid.UUID) (Tool, error)
+	ListTools(ctx context.Context, orgID uuid.UUID, p Page) ([]Tool, error)
+	// UpdateTool applies the patch when the stored version equals version;
+	// ErrPreconditionFailed otherwise.
+	UpdateTool(ctx context.Context, orgID, id uuid.UUID, version int64, p ToolPatch) (Tool, error)
+	// CreateCalibration stores c as its tool's next version (the store
+	// numbers it 1, 2, … per tool and returns it with Version set) when the
+	// tool is still at toolVersion, the version whose facts c was fitted
+	// with; ErrConflict when the tool changed meanwhile.
+	CreateCalibration(ctx context.Context, c Calibration, toolVersion int64) (Calibration, error)
+	GetCalibration(ctx context.Context, orgID, id uuid.UUID) (Calibration, error)
+	// ListCalibrations lists a tool's versions by version number.
+	ListCalibrations(ctx context.Context, orgID, toolID uuid.UUID, p Page) ([]Calibration, error)
 }

@@ -49,10 +49,14 @@ func demo(ctx context.Context, cfg config, getenv func(string) string, log *slog
 			return fmt.Errorf("demo location %s: %w", l.Code, err)
 		}
 	}
+	tools, cals, err := demoTools(ctx, a.svc, p)
+	if err != nil {
+		return err
+	}
 	k, err := a.svc.CreateAPIKey(ctx, DemoOrgID, service.NewKeyInput{Name: "demo", Role: service.RoleAdmin})
 	if err != nil {
 		return err
 	}
-	fmt.Fprintf(stdout, "demo organisation: %s (3 locations)\nAPI key: %s\n", DemoOrgID, k.Secret)
+	fmt.Fprintf(stdout, "demo organisation: %s (3 locations, %d tensiometers, %d calibrations)\nAPI key: %s\n", DemoOrgID, tools, cals, k.Secret)
 	return nil
 }
