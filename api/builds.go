@@ -164,3 +164,49 @@ func (s *Server) acceptQuote(c echo.Context) error {
 	}
 	return c.JSON(http.StatusOK, q)
 }
+
+type buildAuditJSON struct {
+	CalibrationID uuid.UUID              `json:"calibration_id"`
+	Readings      []service.AuditReading `json:"readings"`
+	TolerancePct  *float64               `json:"tolerance_pct"`
+	Notes         string                 `json:"notes"`
+}
+
+func (s *Server) createBuildAudit(c echo.Context) error {
+	id, err := pathID(c)
+	if err != nil {
+		return err
+	}
+	var in buildAuditJSON
+	if err := decode(c, &in); err != nil {
+		return err
+	}
+	a, err := s.svc.RecordBuildAudit(c.Request().Context(), principal(c), id, service.BuildAuditInput(in))
+	if err != nil {
+		return err
+	}
+	return c.JSON(http.StatusCreated, a)
+}
+
+func (s *Server) listBuildAudits(c echo.Context) error {
+	id, err := pathID(c)
+	if err != nil {
+		return err
+	}
+	pg, err := page(c)
+	if err != nil {
+		return err
+	}
+	as, err := s.svc.ListBuildAudits(c.Request().Context(), principal(c), id, pg)
+	if err != nil {
+		return err
+	}
+	out := listJSON[service.BuildTensionAudit]{Items: as}
+	if out.Items == nil {
+		out.Items = []service.BuildTensionAudit{}
+	}
+	if len(as) > 0 {
+		out.NextCursor = nextCursor(len(as), pg.Limit, as[len(as)-1].ID)
+	}
+	return c.JSON(http.StatusOK, out)
+}

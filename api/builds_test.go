@@ -248,3 +248,66 @@ func TestConcurrentAccepts(t *testing.T) {
 		t.Errorf("%d ordered builds, want 12", len(ordered.Items))
 	}
 }
+
+// TestBuildTargetsAndAudits: a build at a location whose tensiometer has a
+// calibration carries target readings; audits are stored, the newer one
+// superseding the older, and the database refuses to edit them.
+func TestBuildTargetsAndAudits(t *testing.T) {
+	e := newEnv(t)
+	w := e.keyA[service.RoleWrite]
+	s := e.newShop(3)
+	var tool struct{ ID uuid.UUID }
+	e.want(e.do("POST", "/v1/tools", w, map[string]any{"label": "front bench tensiometer", "location_id": s.loc}), 201).json(t, &tool)
+	cal := e.publish(tool.ID, e.synthColumns(1.5, 1.8, 2.0, 2.3))
+	var b struct {
+		ID       uuid.UUID `json:"id"`
+		Snapshot struct {
+			TargetTensionsN struct{ Left, Right float64 } `json:"target_tensions_n"`
+			TargetReadings  *struct {
+				CalibrationID uuid.UUID `json:"calibration_id"`
+				Right         struct {
+					Reading float64 `json:"reading"`
+					Status  string  `json:"status"`
+				} `json:"right"`
+			} `json:"target_readings"`
+		} `json:"snapshot"`
+	}
+	e.want(e.do("POST", "/v1/builds", w, map[string]any{"spec": s.spec(), "location_id": s.loc}), 201).json(t, &b)
+	tr := b.Snapshot.TargetReadings
+	if tr == nil || tr.CalibrationID != cal.ID || tr.Right.Reading <= 0 {
+		t.Fatalf("target readings %+v", tr)
+	}
+	// The right side's aim reading converts back to its target tension
+	// (forward then inverse through the same stored model).
+	want := e.synthReading(steel(2.0), b.Snapshot.TargetTensionsN.Right)
+	if d := tr.Right.Reading - want; d > 1.5 || d < -1.5 {
+		t.Errorf("aim reading %.2f, the synthetic tool reads %.2f at %.0f N", tr.Right.Reading, want, b.Snapshot.TargetTensionsN.Right)
+	}
+	readings := []map[string]any{}
+	for i := range 16 {
+		readings = append(readings, map[string]any{"side": "left", "spoke": i, "reading": tr.Right.Reading - 20},
+			map[string]any{"side": "right", "spoke": i, "reading": tr.Right.Reading})
+	}
+	path := "/v1/builds/" + b.ID.String() + "/tension-audits"
+	var a1, a2 struct{ ID uuid.UUID }
+	e.want(e.do("POST", path, w, map[string]any{"calibration_id": cal.ID, "readings": readings}), 201).json(t, &a1)
+	e.want(e.do("POST", path, w, map[string]any{"calibration_id": cal.ID, "readings": readings, "notes": "after truing"}), 201).json(t, &a2)
+	var list struct {
+		Items []struct {
+			ID           uuid.UUID  `json:"id"`
+			SupersededBy *uuid.UUID `json:"superseded_by"`
+		} `json:"items"`
+	}
+	e.want(e.do("GET", path, w, nil), 200).json(t, &list)
+	if len(list.Items) != 2 || list.Items[0].SupersededBy == nil || *list.Items[0].SupersededBy != a2.ID || list.Items[1].SupersededBy != nil {
+		t.Fatalf("audits %+v", list.Items)
+	}
+	if _, err := e.st.Pool().Exec(t.Context(), `UPDATE build_tension_audits SET notes = 'edited' WHERE id = $1`, a2.ID); err == nil {
+		t.Error("an audit was edited")
+	}
+	if _, err := e.st.Pool().Exec(t.Context(), `DELETE FROM build_tension_audits WHERE id = $1`, a1.ID); err == nil {
+		t.Error("an audit was deleted")
+	}
+	e.want(e.do("POST", path, w, map[string]any{"calibration_id": uuid.New(), "readings": readings}), 422)
+	e.want(e.do("POST", path, w, map[string]any{"calibration_id": cal.ID, "readings": []any{}}), 400)
+}

@@ -16,16 +16,18 @@ type fixture func(e *env) (id uuid.UUID, body any)
 // fixtures is keyed by "METHOD path". Every route with an {id} must have
 // one: TestOtherOrganisationsIDs fails for a route that lacks it.
 var fixtures = map[string]fixture{
-	"GET /v1/locations/{id}":      locationFixture(nil),
-	"PATCH /v1/locations/{id}":    locationFixture(map[string]any{"name": "renamed"}),
-	"GET /v1/parts/{id}":          partFixture(nil),
-	"PATCH /v1/parts/{id}":        partFixture(map[string]any{"price_minor": 1}),
-	"GET /v1/parts/{id}/stock":    partFixture(nil),
-	"PUT /v1/parts/{id}/stock":    partFixture(map[string]any{"levels": []any{}}),
-	"GET /v1/builds/{id}":         buildFixture(nil),
-	"PATCH /v1/builds/{id}":       buildFixture(map[string]any{"notes": "x"}),
-	"GET /v1/quotes/{id}":         quoteFixture(),
-	"POST /v1/quotes/{id}/accept": quoteFixture(),
+	"GET /v1/locations/{id}":              locationFixture(nil),
+	"PATCH /v1/locations/{id}":            locationFixture(map[string]any{"name": "renamed"}),
+	"GET /v1/parts/{id}":                  partFixture(nil),
+	"PATCH /v1/parts/{id}":                partFixture(map[string]any{"price_minor": 1}),
+	"GET /v1/parts/{id}/stock":            partFixture(nil),
+	"PUT /v1/parts/{id}/stock":            partFixture(map[string]any{"levels": []any{}}),
+	"GET /v1/builds/{id}":                 buildFixture(nil),
+	"PATCH /v1/builds/{id}":               buildFixture(map[string]any{"notes": "x"}),
+	"GET /v1/builds/{id}/tension-audits":  buildFixture(nil),
+	"POST /v1/builds/{id}/tension-audits": buildFixture(map[string]any{"calibration_id": uuid.New(), "readings": []map[string]any{{"side": "left", "spoke": 0, "reading": 300}}}),
+	"GET /v1/quotes/{id}":                 quoteFixture(),
+	"POST /v1/quotes/{id}/accept":         quoteFixture(),
 	"DELETE /v1/api-keys/{id}": func(e *env) (uuid.UUID, any) {
 		k, err := e.svc.CreateAPIKey(e.t.Context(), e.orgA, service.NewKeyInput{Role: service.RoleRead})
 		if err != nil {

@@ -6,7 +6,6 @@ import (
 	"encoding/json"
 	"errors"
 	"fmt"
-	"math"
 	"strings"
 	"time"
 	"unicode/utf8"
@@ -14,6 +13,7 @@ import (
 	"github.com/google/uuid"
 
 	"wheelbench/service/geometry"
+	"wheelbench/service/spoke"
 )
 
 // BuildStatus is where a build is in the shop.
@@ -357,15 +357,50 @@ func appendUnique(list []string, more ...string) []string {
 	return list
 }
 
-// targetReadings is overridden when the tension records are wired in; it
-// returns nil when the location has no calibrated tool.
-var targetReadingsHook func(s *Service, ctx context.Context, p Principal, locationID uuid.UUID, in CompatibilityInput, t Sides) (*TargetReadings, []string, error)
-
+// targetReadings converts each side's target tension to the reading to aim
+// for on the location's default tensiometer (its newest calibration). nil
+// when the location has no calibrated tool; a side the calibration cannot
+// convert carries the reason instead of a reading, and a caution.
 func (s *Service) targetReadings(ctx context.Context, p Principal, locationID uuid.UUID, in CompatibilityInput, t Sides) (*TargetReadings, []string, error) {
-	if targetReadingsHook == nil || math.IsNaN(t.Left) {
+	cal, err := s.store.LatestCalibrationAt(ctx, p.OrgID, locationID)
+	if errors.Is(err, ErrNotFound) {
 		return nil, nil, nil
 	}
-	return targetReadingsHook(s, ctx, p, locationID, in, t)
+	if err != nil {
+		return nil, nil, err
+	}
+	if cal.Model == nil {
+		return nil, nil, nil
+	}
+	spec := SpokeSpec{Profile: "round", Material: "stainless_steel"}
+	if in.Spoke.Material != nil {
+		spec.Material = *in.Spoke.Material
+	}
+	switch {
+	case in.Spoke.DiameterMM != nil:
+		spec.DiameterMM = *in.Spoke.DiameterMM
+	case in.Spoke.Gauge != nil:
+		d, _ := spoke.GaugeDiameterMM(*in.Spoke.Gauge)
+		spec.DiameterMM = d
+	}
+	out := &TargetReadings{ToolID: cal.ToolID, CalibrationID: cal.ID}
+	var cautions []string
+	for _, side := range []struct {
+		name string
+		n    float64
+		dst  *json.RawMessage
+	}{{"left", t.Left, &out.Left}, {"right", t.Right, &out.Right}} {
+		tg, err := cal.Model.Target(spec, side.n)
+		if err != nil {
+			msg := strings.TrimPrefix(err.Error(), "json: ")
+			*side.dst, _ = json.Marshal(map[string]string{"refused": msg})
+			cautions = append(cautions, fmt.Sprintf("The %s side's target reading could not be computed from the location's tensiometer calibration (%s); calibrate the tool for this spoke before tensioning.", side.name, msg))
+			continue
+		}
+		*side.dst, _ = json.Marshal(tg)
+		cautions = append(cautions, tg.Cautions...)
+	}
+	return out, cautions, nil
 }
 
 // GetBuild reads one build.

@@ -65,6 +65,15 @@ type Store interface {
 	// and moves the build to ordered, in one transaction.
 	AcceptQuote(ctx context.Context, orgID, id uuid.UUID, now time.Time) (Quote, error)
 
+	// LatestCalibrationAt returns the newest calibration of the location's
+	// default tensiometer (the most recently added tool there that has one).
+	LatestCalibrationAt(ctx context.Context, orgID, locationID uuid.UUID) (Calibration, error)
+
+	// CreateBuildAudit stores a and marks the build's previous latest audit
+	// superseded by it.
+	CreateBuildAudit(ctx context.Context, a BuildTensionAudit, locationID uuid.UUID) error
+	ListBuildAudits(ctx context.Context, orgID, buildID uuid.UUID, p Page) ([]BuildTensionAudit, error)
+
 	// RunIdempotent runs fn in one transaction with the key's record; see
 	// Service.RunIdempotent. replayed is true when the stored response is
 	// returned without running fn.

@@ -79,6 +79,9 @@ func (s *Store) UpdateTool(ctx context.Context, orgID, id uuid.UUID, version int
 
 const calibrationColumns = `org_id, id, tool_id, version, source, notes, unit_mm, measured_span_mm, columns, model_version, model, created_at`
 
+// calibrationColumnsC is calibrationColumns qualified by the alias c.
+var calibrationColumnsC = "org_id, c.id, c.tool_id, c.version, c.source, c.notes, c.unit_mm, c.measured_span_mm, c.columns, c.model_version, c.model, c.created_at"
+
 func scanCalibration(row pgx.CollectableRow) (service.Calibration, error) {
 	var c service.Calibration
 	var cols, model []byte
@@ -153,4 +156,15 @@ func (s *Store) ListCalibrations(ctx context.Context, orgID, toolID uuid.UUID, p
 	  ORDER BY version LIMIT $4`
 	rows, _ := s.db(ctx).Query(ctx, q, orgID, toolID, p.After, p.Limit)
 	return pgx.CollectRows(rows, scanCalibration)
+}
+
+// LatestCalibrationAt returns the newest calibration version of the
+// location's default tensiometer: the most recently added tool there that
+// has a calibration. ErrNotFound when none has.
+func (s *Store) LatestCalibrationAt(ctx context.Context, orgID, locationID uuid.UUID) (c service.Calibration, err error) {
+	defer wrap(&err, "latest calibration at location")
+	q := `SELECT c.` + calibrationColumnsC + ` FROM calibrations c JOIN tools t ON t.org_id = c.org_id AND t.id = c.tool_id
+	  WHERE c.org_id = $1 AND t.location_id = $2 ORDER BY t.id DESC, c.version DESC LIMIT 1`
+	rows, _ := s.db(ctx).Query(ctx, q, orgID, locationID)
+	return pgx.CollectExactlyOneRow(rows, scanCalibration)
 }
