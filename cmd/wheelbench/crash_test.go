@@ -97,9 +97,9 @@ func buildBody(location string, i int) []byte {
 			"hub": map[string]any{"holes": 32, "kind": "bicycle",
 				"left":  map[string]any{"pcd_mm": 45, "center_to_flange_mm": 35, "hole_diameter_mm": 2.6, "thickness_mm": 3},
 				"right": map[string]any{"pcd_mm": 45, "center_to_flange_mm": 35, "hole_diameter_mm": 2.6, "thickness_mm": 3}},
-			"rim":    map[string]any{"holes": 32, "erd_mm": 601, "bsd_mm": 622, "inner_width_mm": 19, "hole_diameter_mm": 4.2, "spoke_hole_offset_mm": 0},
-			"spoke":  map[string]any{"diameter_mm": 2.0, "head_diameter_mm": 4.0, "elbow_length_mm": 2.8, "thread": map[string]any{"diameter_mm": 2.0, "tpi": 56}},
-			"nipple": map[string]any{"thread": map[string]any{"diameter_mm": 2.0, "tpi": 56}, "shank_diameter_mm": 3.9, "head_diameter_mm": 5.6, "length_mm": 12},
+			"rim":     map[string]any{"holes": 32, "erd_mm": 601, "bsd_mm": 622, "inner_width_mm": 19, "hole_diameter_mm": 4.2, "spoke_hole_offset_mm": 0},
+			"spoke":   map[string]any{"diameter_mm": 2.0, "head_diameter_mm": 4.0, "elbow_length_mm": 2.8, "thread": map[string]any{"diameter_mm": 2.0, "tpi": 56}},
+			"nipple":  map[string]any{"thread": map[string]any{"diameter_mm": 2.0, "tpi": 56}, "shank_diameter_mm": 3.9, "head_diameter_mm": 5.6, "length_mm": 12},
 			"crosses": map[string]any{"left": 3, "right": 3}, "target_tension_n": 1000,
 			"stock": map[string]any{"increment_mm": 2},
 		},
@@ -269,4 +269,3 @@ func isTransport(err error) bool {
 	s := err.Error()
 	return strings.Contains(s, "connection refused") || strings.Contains(s, "EOF") || strings.Contains(s, "connection reset")
 }
-
