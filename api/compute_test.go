@@ -82,7 +82,7 @@ type problemJSON struct {
 // must parse as a finite float64 and no text may spell NaN or an infinity
 // (as a %f of one would). encoding/json refuses to write NaN or ±Inf, so a
 // non-finite result would also surface as a 500.
-func noNonFinite(t *testing.T, r response) {
+func noNonFinite(t testing.TB, r response) {
 	t.Helper()
 	if r.StatusCode >= 500 {
 		t.Fatalf("%s: status %d\n%s", r.Request.URL.Path, r.StatusCode, r.body)

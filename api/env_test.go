@@ -25,7 +25,7 @@ import (
 
 // env is the real stack over a fresh database, served by httptest.
 type env struct {
-	t      *testing.T
+	t      testing.TB
 	srv    *api.Server
 	http   *httptest.Server
 	svc    *service.Service
@@ -43,7 +43,13 @@ func newEnv(t *testing.T) *env {
 	return newEnvPool(t, storetest.Pool(t))
 }
 
-func newEnvPool(t *testing.T, pool *pgxpool.Pool) *env {
+// newEnvB is newEnv for benchmarks.
+func newEnvB(b *testing.B) *env {
+	b.Helper()
+	return newEnvPool(b, storetest.Pool(b))
+}
+
+func newEnvPool(t testing.TB, pool *pgxpool.Pool) *env {
 	t.Helper()
 	st := store.New(pool)
 	svc := service.New(st, nil)
@@ -80,7 +86,7 @@ func newEnvPool(t *testing.T, pool *pgxpool.Pool) *env {
 }
 
 // tlog sends the server's error log lines to the test log.
-type tlog struct{ t *testing.T }
+type tlog struct{ t testing.TB }
 
 func (w tlog) Write(b []byte) (int, error) { w.t.Log(strings.TrimSpace(string(b))); return len(b), nil }
 
@@ -90,7 +96,7 @@ type response struct {
 	body []byte
 }
 
-func (r response) json(t *testing.T, v any) {
+func (r response) json(t testing.TB, v any) {
 	t.Helper()
 	if err := json.Unmarshal(r.body, v); err != nil {
 		t.Fatalf("decode %s: %v\n%s", r.Request.URL.Path, err, r.body)
@@ -98,7 +104,7 @@ func (r response) json(t *testing.T, v any) {
 }
 
 // problem decodes a problem+json body.
-func (r response) problem(t *testing.T) api.Problem {
+func (r response) problem(t testing.TB) api.Problem {
 	t.Helper()
 	if ct := r.Header.Get("Content-Type"); ct != "application/problem+json" {
 		t.Fatalf("%s %s: content type %q, want application/problem+json\n%s", r.Request.Method, r.Request.URL.Path, ct, r.body)

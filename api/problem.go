@@ -143,6 +143,10 @@ func toProblem(err error) (p Problem, internal bool) {
 			return p, false
 		}
 	}
+	if errors.Is(err, context.Canceled) {
+		// The client went away; nobody reads this answer and it is no fault.
+		return Problem{Status: 499, Title: "Client Closed Request"}, false
+	}
 	if errors.Is(err, context.DeadlineExceeded) {
 		return Problem{Status: http.StatusServiceUnavailable, Title: http.StatusText(http.StatusServiceUnavailable),
 			Detail: "The request took too long; retry shortly."}, false
