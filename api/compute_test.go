@@ -394,6 +394,39 @@ func TestBatchLimits(t *testing.T) {
 	// The single endpoint keeps the 1 MiB default.
 	e.want(e.do("POST", "/v1/spoke-lengths", key, contractBody+strings.Repeat(" ", 1<<20)), 413).problem(t)
 	e.want(e.do("POST", "/v1/spoke-lengths/batch", key, `{"wheels": []}`), 400).problem(t)
-	e.want(e.do("POST", "/v1/spoke-lengths/batch", key, `{"wheels": [5]}`), 400).problem(t)
 	e.want(e.do("POST", "/v1/spoke-lengths/batch", key, `{"wheels": [{}], "extra": 1}`), 400).problem(t)
+	e.want(e.do("POST", "/v1/spoke-lengths/batch", key, `{"wheels": {}}`), 400).problem(t)
+	e.want(e.do("POST", "/v1/spoke-lengths/batch", key, `{}`), 400).problem(t)
+}
+
+// TestBatchBadEnvelope: a body that is not JSON is refused as a whole (even
+// when only one wheel is broken); a wheel that is JSON but not an object
+// gets a problem in its slot; the body must be application/json.
+func TestBatchBadEnvelope(t *testing.T) {
+	e := newEnv(t)
+	key := e.keyA[service.RoleRead]
+	for _, body := range []string{
+		`{"wheels": [`,
+		`{"wheels": [` + contractBody + `,]}`,
+		`{"wheels": [{"spoke_count": 32,,}]}`,
+		`{"wheels": [{"spoke_count": 32}]} trailing`,
+		`{"wheels": [{"spoke_count": 32]}}`,
+		`not json at all`,
+	} {
+		e.want(e.do("POST", "/v1/spoke-lengths/batch", key, body), 400).problem(t)
+	}
+	r := e.want(e.do("POST", "/v1/spoke-lengths/batch", key, `{"wheels": [5, "x", null, `+contractBody+`]}`), 200)
+	var b batchJSON
+	r.json(t, &b)
+	if b.Succeeded != 1 || b.Failed != 3 {
+		t.Fatalf("succeeded %d failed %d, want 1 and 3:\n%s", b.Succeeded, b.Failed, r.body)
+	}
+	var p problemJSON
+	if err := json.Unmarshal(b.Results[0], &p); err != nil || p.Status != 400 {
+		t.Fatalf("slot 0: %s", b.Results[0])
+	}
+	if _, ok := hasPointer(p, "/wheels/0"); !ok {
+		t.Errorf("slot 0 errors %+v do not name /wheels/0", p.Errors)
+	}
+	e.want(e.do("POST", "/v1/spoke-lengths/batch", key, `{"wheels": [{}]}`, "Content-Type", "text/plain"), 415).problem(t)
 }
