@@ -35,7 +35,7 @@ func (s *Server) routeTable(g prometheus.Gatherer) []Route {
 		{Method: http.MethodPost, Path: "/v1/api-keys", Role: service.RoleAdmin, handler: s.createAPIKey},
 		{Method: http.MethodDelete, Path: "/v1/api-keys/{id}", Role: service.RoleAdmin, handler: s.revokeAPIKey},
 
-		{Method: http.MethodPost, Path: "/v1/spoke-lengths", Role: service.RoleRead, handler: s.computeSpokeLengths},
+		{Method: http.MethodPost, Path: "/v1/spoke-lengths", Role: service.RoleRead, OwnBodyCheck: true, handler: s.computeSpokeLengths},
 		{Method: http.MethodPost, Path: "/v1/spoke-lengths/batch", Role: service.RoleRead, BodyLimit: BatchBodyLimit, OwnBodyCheck: true, handler: s.computeSpokeLengthsBatch},
 		{Method: http.MethodPost, Path: "/v1/compatibility-checks", Role: service.RoleRead, handler: s.checkCompatibility},
 	}
