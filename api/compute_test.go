@@ -2,11 +2,15 @@ package api_test
 
 import (
 	"bytes"
+	"context"
 	"encoding/json"
 	"fmt"
 	"math"
+	"net/http"
 	"strings"
 	"testing"
+
+	"github.com/getkin/kin-openapi/openapi3filter"
 
 	"wheelbench/service"
 )
@@ -199,18 +203,18 @@ func TestSpokeLengthsTangent(t *testing.T) {
 	}
 }
 
-// TestSpokeLengthsBadInput: every malformed or impossible wheel is a 4xx
-// naming its field, and no body ever carries a non-finite number.
-func TestSpokeLengthsBadInput(t *testing.T) {
-	e := newEnv(t)
-	key := e.keyA[service.RoleRead]
+type badWheel struct {
+	name    string
+	body    string
+	status  int
+	pointer string
+}
+
+// badWheels are malformed or impossible single-wheel bodies, each with the
+// status and the field it must get.
+func badWheels() []badWheel {
 	rep := func(old, new string) string { return strings.Replace(contractBody, old, new, 1) }
-	cases := []struct {
-		name    string
-		body    string
-		status  int
-		pointer string
-	}{
+	return []badWheel{
 		// An ERD inside the flange circle would make the law of cosines
 		// meaningless (the spoke would point inward).
 		{"erd inside the flange circle", rep(`"erd_mm": 599`, `"erd_mm": 40`), 400, "/rim/erd_mm"},
@@ -231,13 +235,21 @@ func TestSpokeLengthsBadInput(t *testing.T) {
 		{"wrong nested type", rep(`"erd_mm": 599`, `"erd_mm": "599"`), 400, "/rim/erd_mm"},
 		{"unknown field", rep(`"thickness_mm": 3.0`, `"thickness_mm": 3.0, "colour": "red"`), 400, "/hub/left/colour"},
 		{"unknown hub type", rep(`"type": "j_bend"`, `"type": "bent"`), 400, "/hub/type"},
-		{"missing crosses", rep(`"crosses": { "left": 3, "right": 3 },`, ``), 400, "/crosses"},
+		{"missing crosses", rep(`"crosses": { "left": 3, "right": 3 },`, ``), 400, "/crosses/left"},
 		{"missing left crosses", rep(`"left": 3, "right": 3`, `"right": 3`), 400, "/crosses/left"},
 		{"garbage", `{"spoke_count": 32, "hub": {`, 400, ""},
 		{"not an object", `[1, 2, 3]`, 400, ""},
 		{"empty", ``, 400, ""},
 		{"trailing data", contractBody + ` {}`, 400, ""},
 	}
+}
+
+// TestSpokeLengthsBadInput: every malformed or impossible wheel is a 4xx
+// naming its field, and no body ever carries a non-finite number.
+func TestSpokeLengthsBadInput(t *testing.T) {
+	e := newEnv(t)
+	key := e.keyA[service.RoleRead]
+	cases := badWheels()
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
 			r := e.want(e.do("POST", "/v1/spoke-lengths", key, c.body), c.status)
@@ -394,6 +406,92 @@ func TestBatchLimits(t *testing.T) {
 	// The single endpoint keeps the 1 MiB default.
 	e.want(e.do("POST", "/v1/spoke-lengths", key, contractBody+strings.Repeat(" ", 1<<20)), 413).problem(t)
 	e.want(e.do("POST", "/v1/spoke-lengths/batch", key, `{"wheels": []}`), 400).problem(t)
-	e.want(e.do("POST", "/v1/spoke-lengths/batch", key, `{"wheels": [5]}`), 400).problem(t)
 	e.want(e.do("POST", "/v1/spoke-lengths/batch", key, `{"wheels": [{}], "extra": 1}`), 400).problem(t)
+	e.want(e.do("POST", "/v1/spoke-lengths/batch", key, `{"wheels": {}}`), 400).problem(t)
+	e.want(e.do("POST", "/v1/spoke-lengths/batch", key, `{}`), 400).problem(t)
+}
+
+// TestBatchBadEnvelope: a body that is not JSON is refused as a whole (even
+// when only one wheel is broken); a wheel that is JSON but not an object
+// gets a problem in its slot; the body must be application/json.
+func TestBatchBadEnvelope(t *testing.T) {
+	e := newEnv(t)
+	key := e.keyA[service.RoleRead]
+	for _, body := range []string{
+		`{"wheels": [`,
+		`{"wheels": [` + contractBody + `,]}`,
+		`{"wheels": [{"spoke_count": 32,,}]}`,
+		`{"wheels": [{"spoke_count": 32}]} trailing`,
+		`{"wheels": [{"spoke_count": 32]}}`,
+		`not json at all`,
+	} {
+		e.want(e.do("POST", "/v1/spoke-lengths/batch", key, body), 400).problem(t)
+	}
+	r := e.want(e.do("POST", "/v1/spoke-lengths/batch", key, `{"wheels": [5, "x", null, `+contractBody+`]}`), 200)
+	var b batchJSON
+	r.json(t, &b)
+	if b.Succeeded != 1 || b.Failed != 3 {
+		t.Fatalf("succeeded %d failed %d, want 1 and 3:\n%s", b.Succeeded, b.Failed, r.body)
+	}
+	var p problemJSON
+	if err := json.Unmarshal(b.Results[0], &p); err != nil || p.Status != 400 {
+		t.Fatalf("slot 0: %s", b.Results[0])
+	}
+	if _, ok := hasPointer(p, "/wheels/0"); !ok {
+		t.Errorf("slot 0 errors %+v do not name /wheels/0", p.Errors)
+	}
+	e.want(e.do("POST", "/v1/spoke-lengths/batch", key, `{"wheels": [{}]}`, "Content-Type", "text/plain"), 415).problem(t)
+}
+
+// TestOwnBodyCheckAgreesWithSpec: the spoke-length routes check their
+// bodies themselves (Route.OwnBodyCheck) instead of through the spec's
+// generic validation. Whatever the spec refuses they must refuse, and
+// whatever they accept the spec must accept — over the bad wheels above,
+// the contract and demo wheels, and variants with optional members.
+func TestOwnBodyCheckAgreesWithSpec(t *testing.T) {
+	e := newEnv(t)
+	key := e.keyA[service.RoleRead]
+	bodies := []string{contractBody, demoMotorBody, demoTandemBody, demoTouringBody,
+		strings.Replace(contractBody, `"stock": { "increment_mm": 2 }`, `"stock": {"lengths_mm": [290, 292]}`, 1),
+		strings.Replace(contractBody, `"spoke_hole_offset_mm": 0`, `"spoke_hole_offset_mm": 1, "stagger_mm": {"left": 1}, "nipple_washer_mm": 0.4`, 1),
+		strings.Replace(contractBody, `"material": "stainless_steel"`, `"material": "titanium", "e_gpa": 110, "sections": [{"length_mm": 200, "diameter_mm": 1.7}]`, 1),
+		strings.Replace(contractBody, `"material": "stainless_steel"`, `"material": "unobtainium"`, 1),
+		strings.Replace(contractBody, `"spoke": { "diameter_mm": 2.0,`, `"spoke": { "gauge": 14.5,`, 1),
+		strings.Replace(contractBody, `"hub": { "type": "j_bend",`, `"hub": { "type": "j_bend", "motor": "yes",`, 1),
+		`{"spoke_count": 32}`, `null`, `{"spoke_count": 32, "hub": null, "rim": {"erd_mm": 599}, "crosses": {"left": 0, "right": 0}}`,
+	}
+	for _, b := range badWheels() {
+		bodies = append(bodies, b.body)
+	}
+	for _, body := range bodies {
+		req, err := http.NewRequest("POST", e.http.URL+"/v1/spoke-lengths", strings.NewReader(body))
+		if err != nil {
+			t.Fatal(err)
+		}
+		req.Header.Set("Content-Type", "application/json")
+		route, params, err := e.router.FindRoute(req)
+		if err != nil {
+			t.Fatal(err)
+		}
+		specErr := openapi3filter.ValidateRequest(context.Background(), &openapi3filter.RequestValidationInput{
+			Request: req, PathParams: params, Route: route,
+			Options: &openapi3filter.Options{AuthenticationFunc: openapi3filter.NoopAuthenticationFunc}})
+		r := e.do("POST", "/v1/spoke-lengths", key, body)
+		switch {
+		case specErr != nil && r.StatusCode < 400:
+			t.Errorf("the spec refuses %.200s (%v) but the server answered %d", body, specErr, r.StatusCode)
+		case r.StatusCode == 200 && specErr != nil:
+			t.Errorf("the server accepted %.200s, the spec refuses it: %v", body, specErr)
+		}
+		// The same wheel in a batch gets the same verdict in its slot.
+		if specErr == nil || !json.Valid([]byte(body)) || strings.TrimSpace(body) == "" {
+			continue
+		}
+		br := e.want(e.do("POST", "/v1/spoke-lengths/batch", key, `{"wheels": [`+body+`]}`), 200)
+		var b batchJSON
+		br.json(t, &b)
+		if b.Failed != 1 {
+			t.Errorf("the spec refuses %.200s, its batch slot succeeded", body)
+		}
+	}
 }

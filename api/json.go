@@ -56,7 +56,9 @@ func jsonProblem(err error) error {
 	case errors.As(err, &syn):
 		msg = fmt.Sprintf("the body is not valid JSON (at byte %d)", syn.Offset)
 	case errors.As(err, &typ):
-		ptr = "/" + strings.ReplaceAll(typ.Field, ".", "/")
+		if typ.Field != "" {
+			ptr = "/" + strings.ReplaceAll(typ.Field, ".", "/")
+		}
 		msg = fmt.Sprintf("must be %s, not %s", jsonKind(typ.Type.Kind().String()), typ.Value)
 	case strings.HasPrefix(err.Error(), "json: unknown field "):
 		name, _ := strconv.Unquote(strings.TrimPrefix(err.Error(), "json: unknown field "))

@@ -70,8 +70,8 @@ func (s *Server) routeTable(g prometheus.Gatherer) []Route {
 
 		{Method: http.MethodGet, Path: "/v1/changes", Role: service.RoleRead, handler: s.listChanges},
 
-		{Method: http.MethodPost, Path: "/v1/spoke-lengths", Role: service.RoleRead, handler: s.computeSpokeLengths},
-		{Method: http.MethodPost, Path: "/v1/spoke-lengths/batch", Role: service.RoleRead, BodyLimit: BatchBodyLimit, handler: s.computeSpokeLengthsBatch},
+		{Method: http.MethodPost, Path: "/v1/spoke-lengths", Role: service.RoleRead, OwnBodyCheck: true, handler: s.computeSpokeLengths},
+		{Method: http.MethodPost, Path: "/v1/spoke-lengths/batch", Role: service.RoleRead, BodyLimit: BatchBodyLimit, OwnBodyCheck: true, handler: s.computeSpokeLengthsBatch},
 		{Method: http.MethodPost, Path: "/v1/compatibility-checks", Role: service.RoleRead, handler: s.checkCompatibility},
 	}
 }

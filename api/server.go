@@ -61,7 +61,11 @@ type Route struct {
 	BodyLimit int64
 	// Idempotent routes honour Idempotency-Key (every creating POST).
 	Idempotent bool
-	handler    echo.HandlerFunc
+	// OwnBodyCheck skips the spec's request-body validation: the handler
+	// checks the body against the spec itself (for a body too large to be
+	// validated generically within the route's time budget).
+	OwnBodyCheck bool
+	handler      echo.HandlerFunc
 }
 
 func init() {

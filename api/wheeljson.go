@@ -1,0 +1,541 @@
+package api
+
+import (
+	"strconv"
+
+	"wheelbench/service/geometry"
+)
+
+// A fast path for decoding batch wheels. encoding/json spends about 15 µs
+// on one wheel (reflection, a validity pre-scan, pointer fields); 10,000 of
+// them would eat the batch's whole time budget. wheelParser decodes the
+// plain, common form of a wheel — exact lower-case member names, no
+// duplicates, no null, no escapes or non-ASCII in strings — by hand and
+// gives up (ok = false) on anything else, which then goes through
+// decodeBytes and encoding/json exactly as before. So the fast path never
+// decides an error: it either yields the Wheel encoding/json would, or
+// steps aside. FuzzWheelParser checks that against encoding/json.
+
+type wheelParser struct {
+	b   []byte
+	i   int
+	bad bool
+	a   *arena
+}
+
+// arena hands out the decoded wheels' optional numbers from shared slabs,
+// so that a batch does not allocate each one. A slab is replaced, never
+// grown, so that the pointers stay valid.
+type arena struct {
+	f []float64
+	n []int
+}
+
+func (a *arena) float(v float64) *float64 {
+	if a == nil {
+		p := new(float64)
+		*p = v
+		return p
+	}
+	if len(a.f) == cap(a.f) {
+		a.f = make([]float64, 0, 4096)
+	}
+	a.f = append(a.f, v)
+	return &a.f[len(a.f)-1]
+}
+
+func (a *arena) int(v int) *int {
+	if a == nil {
+		p := new(int)
+		*p = v
+		return p
+	}
+	if len(a.n) == cap(a.n) {
+		a.n = make([]int, 0, 1024)
+	}
+	a.n = append(a.n, v)
+	return &a.n[len(a.n)-1]
+}
+
+// parseWheel decodes b into w; ok is false when the fast path declined (w
+// is then garbage and must be decoded again the slow way). a may be nil.
+func parseWheel(b []byte, w *geometry.Wheel, a *arena) (ok bool) {
+	p := wheelParser{b: b, a: a}
+	*w = geometry.Wheel{}
+	p.object(func(k []byte) bool {
+		switch string(k) {
+		case "spoke_count":
+			w.SpokeCount = p.integer()
+		case "hub":
+			p.hub(&w.Hub)
+		case "rim":
+			p.rim(&w.Rim)
+		case "crosses":
+			p.object(func(k []byte) bool {
+				switch string(k) {
+				case "left":
+					w.Crosses.Left = p.intPtr()
+				case "right":
+					w.Crosses.Right = p.intPtr()
+				default:
+					return false
+				}
+				return true
+			})
+		case "spoke":
+			w.Spoke = new(geometry.Spoke)
+			p.spoke(w.Spoke)
+		case "target_tension_n":
+			w.TargetTensionN = p.numPtr()
+		case "stock":
+			w.Stock = new(geometry.Stock)
+			p.stock(w.Stock)
+		default:
+			return false
+		}
+		return true
+	})
+	p.ws()
+	return !p.bad && p.i == len(p.b)
+}
+
+func (p *wheelParser) hub(h *geometry.Hub) {
+	p.object(func(k []byte) bool {
+		switch string(k) {
+		case "type":
+			h.Type = p.str()
+		case "left":
+			p.flange(&h.Left)
+		case "right":
+			p.flange(&h.Right)
+		case "disc_brake":
+			h.DiscBrake = p.boolean()
+		case "driven":
+			h.Driven = p.boolean()
+		case "motor":
+			h.Motor = p.boolean()
+		default:
+			return false
+		}
+		return true
+	})
+}
+
+func (p *wheelParser) flange(f *geometry.Flange) {
+	p.object(func(k []byte) bool {
+		switch string(k) {
+		case "pcd_mm":
+			f.PCDMM = p.number()
+		case "center_to_flange_mm":
+			f.CenterToFlangeMM = p.number()
+		case "hole_diameter_mm":
+			f.HoleDiameterMM = p.numPtr()
+		case "thickness_mm":
+			f.ThicknessMM = p.numPtr()
+		case "spoke_exit_offset_mm":
+			f.SpokeExitOffsetMM = p.numPtr()
+		default:
+			return false
+		}
+		return true
+	})
+}
+
+func (p *wheelParser) rim(r *geometry.Rim) {
+	p.object(func(k []byte) bool {
+		switch string(k) {
+		case "erd_mm":
+			r.ERDMM = p.number()
+		case "spoke_hole_offset_mm":
+			r.SpokeHoleOffsetMM = p.number()
+		case "nipple_washer_mm":
+			r.NippleWasherMM = p.number()
+		case "stagger_mm":
+			p.object(func(k []byte) bool {
+				switch string(k) {
+				case "left":
+					r.StaggerMM.Left = p.number()
+				case "right":
+					r.StaggerMM.Right = p.number()
+				default:
+					return false
+				}
+				return true
+			})
+		default:
+			return false
+		}
+		return true
+	})
+}
+
+func (p *wheelParser) spoke(s *geometry.Spoke) {
+	p.object(func(k []byte) bool {
+		switch string(k) {
+		case "diameter_mm":
+			s.DiameterMM = p.numPtr()
+		case "gauge":
+			s.Gauge = p.intPtr()
+		case "material":
+			s.Material = p.str()
+		case "e_gpa":
+			s.EGPa = p.numPtr()
+		case "head_diameter_mm":
+			s.HeadDiameterMM = p.numPtr()
+		case "sections":
+			s.Sections = []geometry.Section{}
+			p.array(func() {
+				var sec geometry.Section
+				p.object(func(k []byte) bool {
+					switch string(k) {
+					case "length_mm":
+						sec.LengthMM = p.number()
+					case "diameter_mm":
+						sec.DiameterMM = p.number()
+					default:
+						return false
+					}
+					return true
+				})
+				s.Sections = append(s.Sections, sec)
+			})
+		default:
+			return false
+		}
+		return true
+	})
+}
+
+func (p *wheelParser) stock(s *geometry.Stock) {
+	p.object(func(k []byte) bool {
+		switch string(k) {
+		case "increment_mm":
+			s.IncrementMM = p.numPtr()
+		case "lengths_mm":
+			s.LengthsMM = []float64{}
+			p.array(func() { s.LengthsMM = append(s.LengthsMM, p.number()) })
+		default:
+			return false
+		}
+		return true
+	})
+}
+
+func (p *wheelParser) ws() {
+	for p.i < len(p.b) {
+		switch p.b[p.i] {
+		case ' ', '\t', '\n', '\r':
+			p.i++
+		default:
+			return
+		}
+	}
+}
+
+// expect consumes c after whitespace.
+func (p *wheelParser) expect(c byte) bool {
+	p.ws()
+	if p.bad || p.i >= len(p.b) || p.b[p.i] != c {
+		p.bad = true
+		return false
+	}
+	p.i++
+	return true
+}
+
+// peek reports whether the next non-space byte is c, without consuming it.
+func (p *wheelParser) peek(c byte) bool {
+	p.ws()
+	return !p.bad && p.i < len(p.b) && p.b[p.i] == c
+}
+
+// object parses {"k": v, ...}; member parses v for known k and returns
+// false for an unknown one. A repeated member declines (encoding/json
+// merges repeats in ways not worth copying).
+func (p *wheelParser) object(member func(k []byte) bool) {
+	if !p.expect('{') {
+		return
+	}
+	if p.peek('}') {
+		p.i++
+		return
+	}
+	var seen [8][]byte
+	n := 0
+	for !p.bad {
+		k := p.key()
+		if p.bad {
+			return
+		}
+		for _, s := range seen[:min(n, len(seen))] {
+			if string(s) == string(k) {
+				p.bad = true
+				return
+			}
+		}
+		if n >= len(seen) { // more members than any of ours has
+			p.bad = true
+			return
+		}
+		seen[n] = k
+		n++
+		if !p.expect(':') || !member(k) {
+			p.bad = true
+			return
+		}
+		p.ws()
+		if p.i < len(p.b) && p.b[p.i] == ',' {
+			p.i++
+			continue
+		}
+		p.expect('}')
+		return
+	}
+}
+
+func (p *wheelParser) array(elem func()) {
+	if !p.expect('[') {
+		return
+	}
+	if p.peek(']') {
+		p.i++
+		return
+	}
+	for !p.bad {
+		elem()
+		p.ws()
+		if p.i < len(p.b) && p.b[p.i] == ',' {
+			p.i++
+			continue
+		}
+		p.expect(']')
+		return
+	}
+}
+
+// key parses a string of printable ASCII without escapes and returns its
+// bytes (no copy).
+func (p *wheelParser) key() []byte {
+	if !p.expect('"') {
+		return nil
+	}
+	start := p.i
+	for p.i < len(p.b) {
+		c := p.b[p.i]
+		switch {
+		case c == '"':
+			k := p.b[start:p.i]
+			p.i++
+			return k
+		case c == '\\' || c < 0x20 || c >= 0x80:
+			p.bad = true
+			return nil
+		}
+		p.i++
+	}
+	p.bad = true
+	return nil
+}
+
+// str is key as a string; the names a wheel usually holds are not copied.
+func (p *wheelParser) str() string {
+	k := p.key()
+	switch string(k) {
+	case geometry.JBend:
+		return geometry.JBend
+	case geometry.StraightPull:
+		return geometry.StraightPull
+	case "stainless_steel":
+		return "stainless_steel"
+	}
+	return string(k)
+}
+
+func (p *wheelParser) boolean() bool {
+	p.ws()
+	switch {
+	case p.bad:
+	case len(p.b)-p.i >= 4 && string(p.b[p.i:p.i+4]) == "true":
+		p.i += 4
+		return true
+	case len(p.b)-p.i >= 5 && string(p.b[p.i:p.i+5]) == "false":
+		p.i += 5
+		return false
+	default:
+		p.bad = true
+	}
+	return false
+}
+
+// literal scans a JSON number and reports whether it is an integer
+// literal (no fraction, no exponent).
+func (p *wheelParser) literal() (s []byte, integer bool) {
+	p.ws()
+	if p.bad {
+		return nil, false
+	}
+	start, b := p.i, p.b
+	i := p.i
+	if i < len(b) && b[i] == '-' {
+		i++
+	}
+	switch {
+	case i < len(b) && b[i] == '0':
+		i++
+	case i < len(b) && b[i] >= '1' && b[i] <= '9':
+		for i < len(b) && b[i] >= '0' && b[i] <= '9' {
+			i++
+		}
+	default:
+		p.bad = true
+		return nil, false
+	}
+	integer = true
+	if i < len(b) && b[i] == '.' {
+		integer = false
+		i++
+		d := i
+		for i < len(b) && b[i] >= '0' && b[i] <= '9' {
+			i++
+		}
+		if i == d {
+			p.bad = true
+			return nil, false
+		}
+	}
+	if i < len(b) && (b[i] == 'e' || b[i] == 'E') {
+		integer = false
+		i++
+		if i < len(b) && (b[i] == '+' || b[i] == '-') {
+			i++
+		}
+		d := i
+		for i < len(b) && b[i] >= '0' && b[i] <= '9' {
+			i++
+		}
+		if i == d {
+			p.bad = true
+			return nil, false
+		}
+	}
+	p.i = i
+	return b[start:i], integer
+}
+
+func (p *wheelParser) number() float64 {
+	s, _ := p.literal()
+	if p.bad {
+		return 0
+	}
+	v, err := strconv.ParseFloat(string(s), 64)
+	if err != nil { // out of range: encoding/json's error, not ours to word
+		p.bad = true
+	}
+	return v
+}
+
+func (p *wheelParser) integer() int {
+	s, integer := p.literal()
+	if p.bad || !integer {
+		p.bad = true
+		return 0
+	}
+	v, err := strconv.ParseInt(string(s), 10, 0)
+	if err != nil {
+		p.bad = true
+	}
+	return int(v)
+}
+
+func (p *wheelParser) numPtr() *float64 { return p.a.float(p.number()) }
+
+func (p *wheelParser) intPtr() *int { return p.a.int(p.integer()) }
+
+// splitWheels finds the elements of a body {"wheels": [e0, e1, …]} without
+// decoding them. ok is false for any other shape (another member, escapes
+// in the member name, unbalanced brackets, …): the caller then decodes the
+// envelope with encoding/json, which also words the error.
+func splitWheels(b []byte) (items [][]byte, ok bool) {
+	p := wheelParser{b: b}
+	if !p.expect('{') || string(p.key()) != "wheels" || !p.expect(':') || !p.expect('[') {
+		return nil, false
+	}
+	items = make([][]byte, 0, len(b)/300)
+	if p.peek(']') {
+		p.i++
+	} else {
+		for {
+			p.ws()
+			start := p.i
+			if !p.skip() {
+				return nil, false
+			}
+			items = append(items, b[start:p.i])
+			p.ws()
+			if p.i < len(b) && b[p.i] == ',' {
+				p.i++
+				continue
+			}
+			if !p.expect(']') {
+				return nil, false
+			}
+			break
+		}
+	}
+	if !p.expect('}') {
+		return nil, false
+	}
+	p.ws()
+	return items, p.i == len(b)
+}
+
+// skip passes over one value: strings (escapes honoured) and brackets are
+// matched; what lies between is left to the element's own decoder. A
+// scalar runs to the next comma or closing bracket at its level.
+func (p *wheelParser) skip() bool {
+	var stack [64]byte
+	depth := 0
+	b, start := p.b, p.i
+	for i := p.i; i < len(b); i++ {
+		switch c := b[i]; c {
+		case '"':
+			for i++; i < len(b) && b[i] != '"'; i++ {
+				if b[i] == '\\' {
+					i++
+				}
+			}
+			if i >= len(b) {
+				return false
+			}
+			if depth == 0 {
+				p.i = i + 1
+				return true
+			}
+		case '{', '[':
+			if depth == len(stack) {
+				return false
+			}
+			stack[depth] = c
+			depth++
+		case '}', ']':
+			if depth == 0 {
+				p.i = i
+				return i > start
+			}
+			if (c == '}') != (stack[depth-1] == '{') {
+				return false
+			}
+			depth--
+			if depth == 0 {
+				p.i = i + 1
+				return true
+			}
+		case ',', ' ', '\t', '\n', '\r':
+			if depth == 0 {
+				p.i = i
+				return i > start
+			}
+		}
+	}
+	return false
+}
