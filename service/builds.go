@@ -311,7 +311,8 @@ func (s *Service) CreateBuild(ctx context.Context, p Principal, in BuildInput) (
 	if utf8.RuneCountInString(in.ExternalRef) > 200 {
 		return Build{}, Invalid("/external_ref", "external_ref must be at most 200 characters")
 	}
-	if _, err := s.store.GetLocation(ctx, p.OrgID, in.LocationID); errors.Is(err, ErrNotFound) {
+	_, cal, err := s.store.LocationWithCalibration(ctx, p.OrgID, in.LocationID)
+	if errors.Is(err, ErrNotFound) {
 		return Build{}, Unprocessable("/location_id", "no such location in this organisation")
 	} else if err != nil {
 		return Build{}, err
@@ -326,9 +327,7 @@ func (s *Service) CreateBuild(ctx context.Context, p Principal, in BuildInput) (
 	}
 	snap := BuildSnapshot{Parts: parts, Resolved: resolved, StockSource: source, Compatibility: rep,
 		TargetTensionsN: Sides{Left: rep.Left.TensionN, Right: rep.Right.TensionN}, Cautions: rep.Cautions}
-	if tr, cautions, err := s.targetReadings(ctx, p, in.LocationID, resolved, snap.TargetTensionsN); err != nil {
-		return Build{}, err
-	} else if tr != nil {
+	if tr, cautions := targetReadings(cal, resolved, snap.TargetTensionsN); tr != nil {
 		snap.TargetReadings = tr
 		snap.Cautions = appendUnique(snap.Cautions, cautions...)
 	}
@@ -358,19 +357,12 @@ func appendUnique(list []string, more ...string) []string {
 }
 
 // targetReadings converts each side's target tension to the reading to aim
-// for on the location's default tensiometer (its newest calibration). nil
-// when the location has no calibrated tool; a side the calibration cannot
+// for on the location's default tensiometer, cal (its newest calibration).
+// nil when the location has no calibrated tool; a side the calibration cannot
 // convert carries the reason instead of a reading, and a caution.
-func (s *Service) targetReadings(ctx context.Context, p Principal, locationID uuid.UUID, in CompatibilityInput, t Sides) (*TargetReadings, []string, error) {
-	cal, err := s.store.LatestCalibrationAt(ctx, p.OrgID, locationID)
-	if errors.Is(err, ErrNotFound) {
-		return nil, nil, nil
-	}
-	if err != nil {
-		return nil, nil, err
-	}
-	if cal.Model == nil {
-		return nil, nil, nil
+func targetReadings(cal *Calibration, in CompatibilityInput, t Sides) (*TargetReadings, []string) {
+	if cal == nil || cal.Model == nil {
+		return nil, nil
 	}
 	spec := SpokeSpec{Profile: "round", Material: "stainless_steel"}
 	if in.Spoke.Material != nil {
@@ -400,7 +392,7 @@ func (s *Service) targetReadings(ctx context.Context, p Principal, locationID uu
 		*side.dst, _ = json.Marshal(tg)
 		cautions = append(cautions, tg.Cautions...)
 	}
-	return out, cautions, nil
+	return out, cautions
 }
 
 // GetBuild reads one build.

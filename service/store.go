@@ -65,9 +65,10 @@ type Store interface {
 	// and moves the build to ordered, in one transaction.
 	AcceptQuote(ctx context.Context, orgID, id uuid.UUID, now time.Time) (Quote, error)
 
-	// LatestCalibrationAt returns the newest calibration of the location's
-	// default tensiometer (the most recently added tool there that has one).
-	LatestCalibrationAt(ctx context.Context, orgID, locationID uuid.UUID) (Calibration, error)
+	// LocationWithCalibration reads a location and the newest calibration of
+	// its default tensiometer (the most recently added tool there that has
+	// one; nil when none), in one round trip.
+	LocationWithCalibration(ctx context.Context, orgID, locationID uuid.UUID) (Location, *Calibration, error)
 
 	// CreateBuildAudit stores a and marks the build's previous latest audit
 	// superseded by it.

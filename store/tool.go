@@ -5,6 +5,7 @@ import (
 	"encoding/json"
 	"errors"
 	"fmt"
+	"time"
 
 	"github.com/google/uuid"
 	"github.com/jackc/pgx/v5"
@@ -158,13 +159,43 @@ func (s *Store) ListCalibrations(ctx context.Context, orgID, toolID uuid.UUID, p
 	return pgx.CollectRows(rows, scanCalibration)
 }
 
-// LatestCalibrationAt returns the newest calibration version of the
-// location's default tensiometer: the most recently added tool there that
-// has a calibration. ErrNotFound when none has.
-func (s *Store) LatestCalibrationAt(ctx context.Context, orgID, locationID uuid.UUID) (c service.Calibration, err error) {
-	defer wrap(&err, "latest calibration at location")
-	q := `SELECT c.` + calibrationColumnsC + ` FROM calibrations c JOIN tools t ON t.org_id = c.org_id AND t.id = c.tool_id
-	  WHERE c.org_id = $1 AND t.location_id = $2 ORDER BY t.id DESC, c.version DESC LIMIT 1`
+// LocationWithCalibration reads a location and, in the same round trip,
+// the newest calibration of its default tensiometer (nil when none).
+func (s *Store) LocationWithCalibration(ctx context.Context, orgID, locationID uuid.UUID) (l service.Location, c *service.Calibration, err error) {
+	defer wrap(&err, "location with calibration")
+	q := `SELECT l.org_id, l.id, l.name, l.code, l.timezone, l.address, l.tax_rate_ppm, l.version, l.created_at, l.updated_at,
+	    cal.* FROM locations l
+	  LEFT JOIN LATERAL (SELECT c.` + calibrationColumnsC + ` FROM calibrations c JOIN tools t ON t.org_id = c.org_id AND t.id = c.tool_id
+	      WHERE c.org_id = l.org_id AND t.location_id = l.id ORDER BY t.id DESC, c.version DESC LIMIT 1) cal ON true
+	  WHERE l.org_id = $1 AND l.id = $2`
 	rows, _ := s.db(ctx).Query(ctx, q, orgID, locationID)
-	return pgx.CollectExactlyOneRow(rows, scanCalibration)
+	l, err = pgx.CollectExactlyOneRow(rows, func(row pgx.CollectableRow) (service.Location, error) {
+		var loc service.Location
+		var cOrg, cID, cTool *uuid.UUID
+		var cVersion *int
+		var cSource, cNotes *string
+		var cUnit, cSpan *float64
+		var cols, model []byte
+		var modelVersion *int
+		var created *time.Time
+		if err := row.Scan(&loc.OrgID, &loc.ID, &loc.Name, &loc.Code, &loc.Timezone, &loc.Address, &loc.TaxRatePPM, &loc.Version, &loc.CreatedAt, &loc.UpdatedAt,
+			&cOrg, &cID, &cTool, &cVersion, &cSource, &cNotes, &cUnit, &cSpan, &cols, &modelVersion, &model, &created); err != nil {
+			return loc, err
+		}
+		if cID == nil {
+			return loc, nil
+		}
+		cal := service.Calibration{OrgID: *cOrg, ID: *cID, ToolID: *cTool, Version: *cVersion, Source: *cSource, Notes: *cNotes, CreatedAt: *created}
+		cal.Tool.UnitMM, cal.Tool.MeasuredSpanMM = *cUnit, cSpan
+		if err := json.Unmarshal(cols, &cal.Columns); err != nil {
+			return loc, err
+		}
+		cal.Model = new(service.TensionModel)
+		if err := json.Unmarshal(model, cal.Model); err != nil {
+			return loc, err
+		}
+		c = &cal
+		return loc, nil
+	})
+	return l, c, err
 }
