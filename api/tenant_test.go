@@ -25,6 +25,22 @@ var fixtures = map[string]fixture{
 		}
 		return k.ID, nil
 	},
+	"GET /v1/webhook-endpoints/{id}":    webhookEndpointFixture(nil),
+	"PATCH /v1/webhook-endpoints/{id}":  webhookEndpointFixture(map[string]any{"description": "renamed"}),
+	"DELETE /v1/webhook-endpoints/{id}": webhookEndpointFixture(nil),
+}
+
+// webhookEndpointFixture makes an endpoint of organisation A; its URL is
+// never sent to (no dispatcher runs in the tenant test).
+func webhookEndpointFixture(body any) fixture {
+	return func(e *env) (uuid.UUID, any) {
+		ep, err := e.svc.CreateWebhookEndpoint(e.t.Context(), service.Principal{OrgID: e.orgA, Role: service.RoleAdmin},
+			service.WebhookEndpointInput{URL: "https://receiver.example/hooks", Events: []string{"*"}})
+		if err != nil {
+			e.t.Fatal(err)
+		}
+		return ep.ID, body
+	}
 }
 
 func locationFixture(body any) fixture {
