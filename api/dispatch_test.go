@@ -324,7 +324,8 @@ func TestRetriesGiveUpAfterTheWindow(t *testing.T) {
 func TestShutdownFinishesSendsAndReleasesTheRest(t *testing.T) {
 	e, svcs := replicas(t, 1)
 	rv := newReceiver(t, func(int64) int { return http.StatusNoContent })
-	rv.hold = make(chan struct{})
+	hold := make(chan struct{})
+	rv.setHold(hold)
 	e.createEndpoint(rv, "*")
 	e.createLocations(3, "bench")
 	d := dispatcher(t, svcs[0], service.DispatcherConfig{Sender: newLoopbackSender(t, rv), Batch: 3, Workers: 1, Retry: fastRetry})
@@ -342,7 +343,7 @@ func TestShutdownFinishesSendsAndReleasesTheRest(t *testing.T) {
 		t.Fatal("Run returned while a send was under way")
 	case <-time.After(50 * time.Millisecond):
 	}
-	close(rv.hold)
+	close(hold)
 	select {
 	case <-done:
 	case <-time.After(10 * time.Second):
@@ -358,7 +359,7 @@ func TestShutdownFinishesSendsAndReleasesTheRest(t *testing.T) {
 		t.Errorf("requests %d, delivered %d, pending %d with %d attempts; want 1, 1, 2 with 0", n, delivered, pending, pendingAttempts)
 	}
 	// Released means due now: another dispatcher takes them at once.
-	rv.hold = nil
+	rv.setHold(nil)
 	d2 := dispatcher(t, svcs[0], service.DispatcherConfig{Sender: newLoopbackSender(t, rv), Retry: fastRetry})
 	if n, err := d2.RunOnce(context.Background()); err != nil || n != 2 {
 		t.Errorf("next round claimed %d (%v), want 2", n, err)

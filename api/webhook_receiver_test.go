@@ -45,7 +45,7 @@ type receiver struct {
 	bad    []string // signature or body failures
 	n      atomic.Int64
 	answer func(n int64) int
-	// hold, when set, is waited on before answering (shutdown tests).
+	// hold, when set (under mu), is waited on before answering.
 	hold chan struct{}
 	// arrived is signalled (non-blocking) on every request.
 	arrived chan struct{}
@@ -80,12 +80,15 @@ func (rv *receiver) setSecret(secret string) {
 func (rv *receiver) serve(w http.ResponseWriter, r *http.Request) {
 	body, err := io.ReadAll(r.Body)
 	n := rv.n.Add(1)
-	if rv.hold != nil {
+	rv.mu.Lock()
+	hold := rv.hold
+	rv.mu.Unlock()
+	if hold != nil {
 		select {
 		case rv.arrived <- struct{}{}:
 		default:
 		}
-		<-rv.hold
+		<-hold
 	}
 	status := rv.answer(n)
 	rv.mu.Lock()
@@ -109,13 +112,20 @@ func (rv *receiver) serve(w http.ResponseWriter, r *http.Request) {
 	}
 	rv.got = append(rv.got, rec)
 	rv.mu.Unlock()
-	if rv.hold == nil {
+	if hold == nil {
 		select {
 		case rv.arrived <- struct{}{}:
 		default:
 		}
 	}
 	w.WriteHeader(status)
+}
+
+// setHold makes requests wait for ch before they are answered (nil: answer at once).
+func (rv *receiver) setHold(ch chan struct{}) {
+	rv.mu.Lock()
+	rv.hold = ch
+	rv.mu.Unlock()
 }
 
 // snapshot returns a copy of what arrived so far.
