@@ -151,19 +151,20 @@ func TestOutcomeFencedByAttempt(t *testing.T) {
 	ctx := context.Background()
 	f := newHookFixture(t, "*")
 	f.location(t, "bench")
-	first, err := f.st.ClaimWebhookDeliveries(ctx, 1, 10*time.Millisecond)
+	first, err := f.st.ClaimWebhookDeliveries(ctx, 1, time.Minute)
 	if err != nil || len(first) != 1 {
 		t.Fatalf("claim: %v %v", first, err)
 	}
 	if again, _ := f.st.ClaimWebhookDeliveries(ctx, 1, time.Minute); len(again) != 0 {
 		t.Fatalf("claimed again while leased: %+v", again)
 	}
-	var second []service.WebhookDelivery
-	for i := 0; i < 200 && len(second) == 0; i++ { // the lease is 10 ms; bounded wait
-		time.Sleep(5 * time.Millisecond)
-		if second, err = f.st.ClaimWebhookDeliveries(ctx, 1, time.Minute); err != nil {
-			t.Fatal(err)
-		}
+	// The lease running out is next_attempt_at passing: move it rather than wait.
+	if _, err := f.pool.Exec(ctx, `UPDATE webhook_deliveries SET next_attempt_at = now() - interval '1 second'`); err != nil {
+		t.Fatal(err)
+	}
+	second, err := f.st.ClaimWebhookDeliveries(ctx, 1, time.Minute)
+	if err != nil {
+		t.Fatal(err)
 	}
 	if len(second) != 1 || second[0].Attempt != 2 || second[0].EventID != first[0].EventID {
 		t.Fatalf("after the lease: %+v, want attempt 2 with event id %s", second, first[0].EventID)
