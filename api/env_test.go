@@ -5,6 +5,7 @@ import (
 	"context"
 	"encoding/json"
 	"io"
+	"log/slog"
 	"net/http"
 	"net/http/httptest"
 	"strings"
@@ -46,7 +47,7 @@ func newEnvPool(t *testing.T, pool *pgxpool.Pool) *env {
 	t.Helper()
 	st := store.New(pool)
 	svc := service.New(st, nil)
-	srv, err := api.New(api.Config{Service: svc})
+	srv, err := api.New(api.Config{Service: svc, Logger: slog.New(slog.NewTextHandler(tlog{t}, &slog.HandlerOptions{Level: slog.LevelError}))})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -77,6 +78,11 @@ func newEnvPool(t *testing.T, pool *pgxpool.Pool) *env {
 	e.orgB, e.keyB = ob.ID, kb.Secret
 	return e
 }
+
+// tlog sends the server's error log lines to the test log.
+type tlog struct{ t *testing.T }
+
+func (w tlog) Write(b []byte) (int, error) { w.t.Log(strings.TrimSpace(string(b))); return len(b), nil }
 
 // response is a finished exchange, already validated against the spec.
 type response struct {

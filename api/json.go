@@ -32,6 +32,12 @@ func decodeBytes(body []byte, v any) error {
 	dec := json.NewDecoder(bytes.NewReader(body))
 	dec.DisallowUnknownFields()
 	if err := dec.Decode(v); err != nil {
+		if strings.HasPrefix(err.Error(), "json: unknown field ") {
+			if p := unknownFieldPointer(body, v); p != "" {
+				return &validationError{status: http.StatusBadRequest, detail: "The body could not be read: see errors.",
+					fields: []FieldProblem{{Pointer: p, Message: "unknown field"}}}
+			}
+		}
 		return jsonProblem(err)
 	}
 	if dec.More() {

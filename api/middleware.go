@@ -117,7 +117,10 @@ func (s *Server) logRequests(next echo.HandlerFunc) echo.HandlerFunc {
 		}
 		status := c.Response().Status
 		level := slog.LevelInfo
-		if status >= 500 {
+		switch {
+		case status == http.StatusServiceUnavailable:
+			level = slog.LevelWarn
+		case status >= 500:
 			level = slog.LevelError
 		}
 		s.log.LogAttrs(c.Request().Context(), level, "request",

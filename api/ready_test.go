@@ -10,6 +10,7 @@ import (
 	"testing"
 	"time"
 
+	"github.com/google/uuid"
 	"github.com/jackc/pgx/v5/pgxpool"
 
 	"wheelbench/service"
@@ -128,4 +129,97 @@ func TestReadyzFollowsTheDatabase(t *testing.T) {
 		time.Sleep(100 * time.Millisecond)
 	}
 	e.want(e.do("GET", "/v1/locations", e.keyA[service.RoleRead], nil), 200)
+}
+
+// TestDatabaseOutageUnderLoad: clients keep creating builds while the
+// database goes away and comes back. While it is away requests fail fast
+// with 503 problem+json and /readyz is 503; afterwards the same process
+// serves again, and every build that was acknowledged (201) is stored.
+func TestDatabaseOutageUnderLoad(t *testing.T) {
+	url := storetest.URL(t)
+	cfg, err := pgxpool.ParseConfig(url)
+	if err != nil {
+		t.Fatal(err)
+	}
+	proxy := newCutProxy(t, net.JoinHostPort(cfg.ConnConfig.Host, strconv.Itoa(int(cfg.ConnConfig.Port))))
+	host, port, _ := net.SplitHostPort(proxy.addr)
+	proxied := strings.NewReplacer("host="+cfg.ConnConfig.Host, "host="+host, "port="+strconv.Itoa(int(cfg.ConnConfig.Port)), "port="+port).Replace(url)
+	pool, err := pgxpool.New(context.Background(), proxied)
+	if err != nil {
+		t.Fatal(err)
+	}
+	t.Cleanup(pool.Close)
+	e := newEnvPool(t, pool)
+	s := e.newShop(1000)
+	w := e.keyA[service.RoleWrite]
+
+	var mu sync.Mutex
+	acked := map[uuid.UUID]bool{}
+	var slowest time.Duration
+	statuses := map[int]int{}
+	stop := make(chan struct{})
+	var wg sync.WaitGroup
+	for range 4 {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			for {
+				select {
+				case <-stop:
+					return
+				default:
+				}
+				start := time.Now()
+				r := e.do("POST", "/v1/builds", w, map[string]any{"spec": s.spec(), "location_id": s.loc})
+				d := time.Since(start)
+				mu.Lock()
+				statuses[r.StatusCode]++
+				if r.StatusCode == 201 {
+					var b struct{ ID uuid.UUID }
+					r.json(t, &b)
+					acked[b.ID] = true
+				} else if r.StatusCode == 503 {
+					r.problem(t)
+					slowest = max(slowest, d)
+				} else {
+					t.Errorf("status %d during the outage test: %s", r.StatusCode, r.body)
+				}
+				mu.Unlock()
+			}
+		}()
+	}
+	time.Sleep(300 * time.Millisecond)
+	proxy.setDown(true)
+	time.Sleep(200 * time.Millisecond)
+	e.want(e.do("GET", "/readyz", "", nil), 503)
+	time.Sleep(500 * time.Millisecond)
+	proxy.setDown(false)
+	deadline := time.Now().Add(15 * time.Second)
+	for e.do("GET", "/readyz", "", nil).StatusCode != 200 {
+		if time.Now().After(deadline) {
+			t.Fatal("/readyz did not come back")
+		}
+		time.Sleep(50 * time.Millisecond)
+	}
+	time.Sleep(300 * time.Millisecond)
+	close(stop)
+	wg.Wait()
+	t.Logf("statuses %v; slowest 503 took %v", statuses, slowest)
+	if statuses[503] == 0 || statuses[201] == 0 {
+		t.Fatalf("the outage was not seen: %v", statuses)
+	}
+	if slowest > 3*time.Second {
+		t.Errorf("a 503 took %v: failing should be fast", slowest)
+	}
+	var stored int
+	ids := make([]uuid.UUID, 0, len(acked))
+	for id := range acked {
+		ids = append(ids, id)
+	}
+	if err := e.st.Pool().QueryRow(context.Background(), `SELECT count(*) FROM builds WHERE id = ANY($1)`, ids).Scan(&stored); err != nil {
+		t.Fatal(err)
+	}
+	if stored != len(acked) {
+		t.Fatalf("%d of %d acknowledged builds are stored", stored, len(acked))
+	}
 }

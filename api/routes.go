@@ -43,6 +43,31 @@ func (s *Server) routeTable(g prometheus.Gatherer) []Route {
 		{Method: http.MethodGet, Path: "/v1/parts/{id}/stock", Role: service.RoleRead, handler: s.getPartStock},
 		{Method: http.MethodPut, Path: "/v1/parts/{id}/stock", Role: service.RoleWrite, handler: s.putPartStock},
 
+		{Method: http.MethodGet, Path: "/v1/builds", Role: service.RoleRead, handler: s.listBuilds},
+		{Method: http.MethodPost, Path: "/v1/builds", Role: service.RoleWrite, Idempotent: true, handler: s.createBuild},
+		{Method: http.MethodGet, Path: "/v1/builds/{id}", Role: service.RoleRead, handler: s.getBuild},
+		{Method: http.MethodPatch, Path: "/v1/builds/{id}", Role: service.RoleWrite, handler: s.updateBuild},
+		{Method: http.MethodGet, Path: "/v1/builds/{id}/tension-audits", Role: service.RoleRead, handler: s.listBuildAudits},
+		{Method: http.MethodPost, Path: "/v1/builds/{id}/tension-audits", Role: service.RoleWrite, Idempotent: true, handler: s.createBuildAudit},
+		{Method: http.MethodGet, Path: "/v1/price-list", Role: service.RoleRead, handler: s.getPriceList},
+		{Method: http.MethodPut, Path: "/v1/price-list", Role: service.RoleAdmin, handler: s.putPriceList},
+		{Method: http.MethodPost, Path: "/v1/quotes", Role: service.RoleWrite, Idempotent: true, handler: s.createQuote},
+		{Method: http.MethodGet, Path: "/v1/quotes/{id}", Role: service.RoleRead, handler: s.getQuote},
+		{Method: http.MethodPost, Path: "/v1/quotes/{id}/accept", Role: service.RoleWrite, Idempotent: true, handler: s.acceptQuote},
+
+		{Method: http.MethodGet, Path: "/v1/tools", Role: service.RoleRead, handler: s.listTools},
+		{Method: http.MethodPost, Path: "/v1/tools", Role: service.RoleWrite, Idempotent: true, handler: s.createTool},
+		{Method: http.MethodGet, Path: "/v1/tools/{id}", Role: service.RoleRead, handler: s.getTool},
+		{Method: http.MethodPatch, Path: "/v1/tools/{id}", Role: service.RoleWrite, handler: s.updateTool},
+		// Calibration versions are immutable: no PATCH or DELETE.
+		{Method: http.MethodGet, Path: "/v1/tools/{id}/calibrations", Role: service.RoleRead, handler: s.listCalibrations},
+		{Method: http.MethodPost, Path: "/v1/tools/{id}/calibrations", Role: service.RoleWrite, Idempotent: true, handler: s.publishCalibration},
+		{Method: http.MethodGet, Path: "/v1/calibrations/{id}", Role: service.RoleRead, handler: s.getCalibration},
+		{Method: http.MethodGet, Path: "/v1/calibrations/{id}/chart.svg", Role: service.RoleRead, handler: s.getCalibrationChart},
+		// The computations store nothing: read role, no Idempotency-Key.
+		{Method: http.MethodPost, Path: "/v1/tension-conversions", Role: service.RoleRead, handler: s.convertTension},
+		{Method: http.MethodPost, Path: "/v1/tension-audits", Role: service.RoleRead, handler: s.auditTension},
+
 		{Method: http.MethodGet, Path: "/v1/changes", Role: service.RoleRead, handler: s.listChanges},
 
 		{Method: http.MethodGet, Path: "/v1/webhook-endpoints", Role: service.RoleAdmin, handler: s.listWebhookEndpoints},
@@ -51,6 +76,10 @@ func (s *Server) routeTable(g prometheus.Gatherer) []Route {
 		{Method: http.MethodGet, Path: "/v1/webhook-endpoints/{id}", Role: service.RoleAdmin, handler: s.getWebhookEndpoint},
 		{Method: http.MethodPatch, Path: "/v1/webhook-endpoints/{id}", Role: service.RoleAdmin, handler: s.updateWebhookEndpoint},
 		{Method: http.MethodDelete, Path: "/v1/webhook-endpoints/{id}", Role: service.RoleAdmin, handler: s.deleteWebhookEndpoint},
+
+		{Method: http.MethodPost, Path: "/v1/spoke-lengths", Role: service.RoleRead, handler: s.computeSpokeLengths},
+		{Method: http.MethodPost, Path: "/v1/spoke-lengths/batch", Role: service.RoleRead, BodyLimit: BatchBodyLimit, handler: s.computeSpokeLengthsBatch},
+		{Method: http.MethodPost, Path: "/v1/compatibility-checks", Role: service.RoleRead, handler: s.checkCompatibility},
 	}
 }
 

@@ -16,8 +16,18 @@ type fixture func(e *env) (id uuid.UUID, body any)
 // fixtures is keyed by "METHOD path". Every route with an {id} must have
 // one: TestOtherOrganisationsIDs fails for a route that lacks it.
 var fixtures = map[string]fixture{
-	"GET /v1/locations/{id}":   locationFixture(nil),
-	"PATCH /v1/locations/{id}": locationFixture(map[string]any{"name": "renamed"}),
+	"GET /v1/locations/{id}":              locationFixture(nil),
+	"PATCH /v1/locations/{id}":            locationFixture(map[string]any{"name": "renamed"}),
+	"GET /v1/parts/{id}":                  partFixture(nil),
+	"PATCH /v1/parts/{id}":                partFixture(map[string]any{"price_minor": 1}),
+	"GET /v1/parts/{id}/stock":            partFixture(nil),
+	"PUT /v1/parts/{id}/stock":            partFixture(map[string]any{"levels": []any{}}),
+	"GET /v1/builds/{id}":                 buildFixture(nil),
+	"PATCH /v1/builds/{id}":               buildFixture(map[string]any{"notes": "x"}),
+	"GET /v1/builds/{id}/tension-audits":  buildFixture(nil),
+	"POST /v1/builds/{id}/tension-audits": buildFixture(map[string]any{"calibration_id": uuid.New(), "readings": []map[string]any{{"side": "left", "spoke": 0, "reading": 300}}}),
+	"GET /v1/quotes/{id}":                 quoteFixture(),
+	"POST /v1/quotes/{id}/accept":         quoteFixture(),
 	"DELETE /v1/api-keys/{id}": func(e *env) (uuid.UUID, any) {
 		k, err := e.svc.CreateAPIKey(e.t.Context(), e.orgA, service.NewKeyInput{Role: service.RoleRead})
 		if err != nil {
@@ -25,9 +35,39 @@ var fixtures = map[string]fixture{
 		}
 		return k.ID, nil
 	},
-	"GET /v1/webhook-endpoints/{id}":    webhookEndpointFixture(nil),
-	"PATCH /v1/webhook-endpoints/{id}":  webhookEndpointFixture(map[string]any{"description": "renamed"}),
-	"DELETE /v1/webhook-endpoints/{id}": webhookEndpointFixture(nil),
+	"GET /v1/tools/{id}":                  toolFixture(nil),
+	"PATCH /v1/tools/{id}":                toolFixture(map[string]any{"label": "renamed"}),
+	"GET /v1/tools/{id}/calibrations":     toolFixture(nil),
+	"POST /v1/tools/{id}/calibrations":    toolFixture(map[string]any{"columns": []any{map[string]any{"spoke": map[string]any{"diameter_mm": 2.0, "material": "stainless_steel"}, "points": []any{map[string]any{"tension_n": 800, "reading": 60}, map[string]any{"tension_n": 1200, "reading": 75}}}}}),
+	"GET /v1/calibrations/{id}":           calibrationFixture,
+	"GET /v1/calibrations/{id}/chart.svg": calibrationFixture,
+	"GET /v1/webhook-endpoints/{id}":      webhookEndpointFixture(nil),
+	"PATCH /v1/webhook-endpoints/{id}":    webhookEndpointFixture(map[string]any{"description": "renamed"}),
+	"DELETE /v1/webhook-endpoints/{id}":   webhookEndpointFixture(nil),
+}
+
+func partFixture(body any) fixture {
+	return func(e *env) (uuid.UUID, any) {
+		return e.createPart("tyre", "TYRE-"+uuid.NewString()[:8], 2500, tyreDims), body
+	}
+}
+
+func buildFixture(body any) fixture {
+	return func(e *env) (uuid.UUID, any) {
+		s := e.newShop(1)
+		var b struct{ ID uuid.UUID }
+		e.want(e.do("POST", "/v1/builds", e.keyA[service.RoleWrite], map[string]any{"spec": s.spec(), "location_id": s.loc}), 201).json(e.t, &b)
+		return b.ID, body
+	}
+}
+
+func quoteFixture() fixture {
+	return func(e *env) (uuid.UUID, any) {
+		id, _ := buildFixture(nil)(e)
+		var q struct{ ID uuid.UUID }
+		e.want(e.do("POST", "/v1/quotes", e.keyA[service.RoleWrite], map[string]any{"build_id": id}), 201).json(e.t, &q)
+		return q.ID, nil
+	}
 }
 
 // webhookEndpointFixture makes an endpoint of organisation A; its URL is

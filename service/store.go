@@ -5,6 +5,8 @@ import (
 	"time"
 
 	"github.com/google/uuid"
+
+	"wheelbench/service/quote"
 )
 
 // Store is the persistence the service needs. store.Store implements it on
@@ -44,11 +46,54 @@ type Store interface {
 	// PutPartStock replaces the levels when the stock is still at version.
 	PutPartStock(ctx context.Context, orgID, partID uuid.UUID, version int64, levels []StockLevel) (PartStock, error)
 
+	CreateBuild(ctx context.Context, b Build) error
+	GetBuild(ctx context.Context, orgID, id uuid.UUID) (Build, error)
+	ListBuilds(ctx context.Context, orgID uuid.UUID, f BuildFilter, p Page) ([]Build, error)
+	// UpdateBuild applies the patch when the build is still at version (and
+	// so still at status from).
+	UpdateBuild(ctx context.Context, orgID, id uuid.UUID, version int64, from BuildStatus, p BuildPatch) (Build, error)
+
+	GetPriceList(ctx context.Context, orgID uuid.UUID) (PriceList, error)
+	// PutPriceList stores pl when the stored version is still version (0: none yet).
+	PutPriceList(ctx context.Context, orgID uuid.UUID, version int64, pl quote.PriceList) (PriceList, error)
+	// CreateQuote stores q, supersedes the build's open quotes and moves the
+	// build from status from to quoted.
+	CreateQuote(ctx context.Context, q Quote, from BuildStatus) error
+	GetQuote(ctx context.Context, orgID, id uuid.UUID) (Quote, error)
+	// AcceptQuote accepts an open, unexpired quote of a quoted build: takes
+	// its stock needs (ErrStockShort when any is short, nothing changed)
+	// and moves the build to ordered, in one transaction.
+	AcceptQuote(ctx context.Context, orgID, id uuid.UUID, now time.Time) (Quote, error)
+
+	// LatestCalibrationAt returns the newest calibration of the location's
+	// default tensiometer (the most recently added tool there that has one).
+	LatestCalibrationAt(ctx context.Context, orgID, locationID uuid.UUID) (Calibration, error)
+
+	// CreateBuildAudit stores a and marks the build's previous latest audit
+	// superseded by it.
+	CreateBuildAudit(ctx context.Context, a BuildTensionAudit, locationID uuid.UUID) error
+	ListBuildAudits(ctx context.Context, orgID, buildID uuid.UUID, p Page) ([]BuildTensionAudit, error)
+
 	// RunIdempotent runs fn in one transaction with the key's record; see
 	// Service.RunIdempotent. replayed is true when the stored response is
 	// returned without running fn.
 	RunIdempotent(ctx context.Context, orgID uuid.UUID, req IdempotentRequest, expires time.Time,
 		fn func(ctx context.Context) (StoredResponse, error)) (resp StoredResponse, replayed bool, err error)
+
+	CreateTool(ctx context.Context, t Tool) error
+	GetTool(ctx context.Context, orgID, id uuid.UUID) (Tool, error)
+	ListTools(ctx context.Context, orgID uuid.UUID, p Page) ([]Tool, error)
+	// UpdateTool applies the patch when the stored version equals version;
+	// ErrPreconditionFailed otherwise.
+	UpdateTool(ctx context.Context, orgID, id uuid.UUID, version int64, p ToolPatch) (Tool, error)
+	// CreateCalibration stores c as its tool's next version (the store
+	// numbers it 1, 2, … per tool and returns it with Version set) when the
+	// tool is still at toolVersion, the version whose facts c was fitted
+	// with; ErrConflict when the tool changed meanwhile.
+	CreateCalibration(ctx context.Context, c Calibration, toolVersion int64) (Calibration, error)
+	GetCalibration(ctx context.Context, orgID, id uuid.UUID) (Calibration, error)
+	// ListCalibrations lists a tool's versions by version number.
+	ListCalibrations(ctx context.Context, orgID, toolID uuid.UUID, p Page) ([]Calibration, error)
 
 	// Webhooks. Writing a change also writes one outbox row per active
 	// endpoint of the organisation subscribed to its type (see MatchesEvent),

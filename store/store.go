@@ -7,6 +7,10 @@ import (
 	"context"
 	"errors"
 	"fmt"
+	"io"
+	"net"
+	"strings"
+	"syscall"
 	"time"
 
 	"github.com/jackc/pgx/v5"
@@ -79,6 +83,15 @@ func isUnavailable(err error) bool {
 	}
 	var netErr interface{ Timeout() bool }
 	if errors.As(err, &netErr) {
+		return true
+	}
+	// A connection that died mid-query or mid-commit: the outcome of a write
+	// is unknown, so the client must retry (with its Idempotency-Key).
+	if errors.Is(err, io.EOF) || errors.Is(err, io.ErrUnexpectedEOF) || errors.Is(err, net.ErrClosed) ||
+		errors.Is(err, syscall.ECONNRESET) || errors.Is(err, syscall.EPIPE) || errors.Is(err, syscall.ECONNREFUSED) {
+		return true
+	}
+	if strings.Contains(err.Error(), "conn closed") {
 		return true
 	}
 	return errors.Is(err, context.DeadlineExceeded) && !errors.Is(err, context.Canceled)

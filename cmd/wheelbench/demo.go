@@ -23,9 +23,9 @@ func demoID(name string) uuid.UUID { return uuid.NewSHA1(demoNamespace, []byte(n
 var DemoOrgID = demoID("organisation")
 
 var demoLocations = []service.LocationInput{
-	{ID: demoID("location/mill"), Name: "Wrenhollow Wheelworks — Mill Lane", Code: "MILL", Timezone: "UTC", Address: "4 Mill Lane, Wrenhollow (fictional)"},
-	{ID: demoID("location/harbour"), Name: "Wrenhollow Wheelworks — Harbour Yard", Code: "HARB", Timezone: "UTC", Address: "Unit 2, Harbour Yard, Wrenhollow (fictional)"},
-	{ID: demoID("location/station"), Name: "Wrenhollow Wheelworks — Station Arches", Code: "STAT", Timezone: "UTC", Address: "Arch 7, Station Road, Wrenhollow (fictional)"},
+	{ID: demoID("location/mill"), Name: "Wrenhollow Wheelworks — Mill Lane", Code: "MILL", Timezone: "UTC", TaxRatePPM: 200000, Address: "4 Mill Lane, Wrenhollow (fictional)"},
+	{ID: demoID("location/harbour"), Name: "Wrenhollow Wheelworks — Harbour Yard", Code: "HARB", Timezone: "UTC", TaxRatePPM: 200000, Address: "Unit 2, Harbour Yard, Wrenhollow (fictional)"},
+	{ID: demoID("location/station"), Name: "Wrenhollow Wheelworks — Station Arches", Code: "STAT", Timezone: "UTC", TaxRatePPM: 200000, Address: "Arch 7, Station Road, Wrenhollow (fictional)"},
 }
 
 // demo loads the demo organisation idempotently and prints a fresh admin key.
@@ -49,10 +49,19 @@ func demo(ctx context.Context, cfg config, getenv func(string) string, log *slog
 			return fmt.Errorf("demo location %s: %w", l.Code, err)
 		}
 	}
+	tools, cals, err := demoTools(ctx, a.svc, p)
+	if err != nil {
+		return err
+	}
+	parts, builds, err := demoShop(ctx, a.svc, p)
+	if err != nil {
+		return err
+	}
 	k, err := a.svc.CreateAPIKey(ctx, DemoOrgID, service.NewKeyInput{Name: "demo", Role: service.RoleAdmin})
 	if err != nil {
 		return err
 	}
-	fmt.Fprintf(stdout, "demo organisation: %s (3 locations)\nAPI key: %s\n", DemoOrgID, k.Secret)
+	fmt.Fprintf(stdout, "demo organisation: %s (3 locations, %d tensiometers, %d calibrations, %d parts, %d builds)\nAPI key: %s\n",
+		DemoOrgID, tools, cals, parts, builds, k.Secret)
 	return nil
 }

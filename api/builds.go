@@ -1,0 +1,212 @@
+package api
+
+import (
+	"encoding/json"
+	"net/http"
+	"time"
+
+	"github.com/google/uuid"
+	"github.com/labstack/echo/v4"
+
+	"wheelbench/service"
+	"wheelbench/service/quote"
+)
+
+type buildCreateJSON struct {
+	Spec        json.RawMessage `json:"spec"`
+	ExternalRef string          `json:"external_ref"`
+	LocationID  uuid.UUID       `json:"location_id"`
+}
+
+func (s *Server) createBuild(c echo.Context) error {
+	var in buildCreateJSON
+	if err := decode(c, &in); err != nil {
+		return err
+	}
+	b, err := s.svc.CreateBuild(c.Request().Context(), principal(c), service.BuildInput(in))
+	if err != nil {
+		return err
+	}
+	c.Response().Header().Set("ETag", b.ETag())
+	c.Response().Header().Set("Location", "/v1/builds/"+b.ID.String())
+	return c.JSON(http.StatusCreated, b)
+}
+
+func (s *Server) getBuild(c echo.Context) error {
+	id, err := pathID(c)
+	if err != nil {
+		return err
+	}
+	b, err := s.svc.GetBuild(c.Request().Context(), principal(c), id)
+	if err != nil {
+		return err
+	}
+	c.Response().Header().Set("ETag", b.ETag())
+	return c.JSON(http.StatusOK, b)
+}
+
+func (s *Server) listBuilds(c echo.Context) error {
+	pg, err := page(c)
+	if err != nil {
+		return err
+	}
+	f := service.BuildFilter{Status: service.BuildStatus(c.QueryParam("status"))}
+	if v := c.QueryParam("location_id"); v != "" {
+		id, err := uuid.Parse(v)
+		if err != nil {
+			return service.Invalid("query:location_id", "location_id must be a UUID")
+		}
+		f.LocationID = &id
+	}
+	if v, ok := c.QueryParams()["external_ref"]; ok && len(v) > 0 {
+		f.ExternalRef = &v[0]
+	}
+	if v := c.QueryParam("updated_after"); v != "" {
+		t, err := time.Parse(time.RFC3339Nano, v)
+		if err != nil {
+			return service.Invalid("query:updated_after", "updated_after must be an RFC 3339 time such as 2026-12-01T10:00:00Z")
+		}
+		f.UpdatedAfter = &t
+	}
+	bs, err := s.svc.ListBuilds(c.Request().Context(), principal(c), f, pg)
+	if err != nil {
+		return err
+	}
+	out := listJSON[service.Build]{Items: bs}
+	if out.Items == nil {
+		out.Items = []service.Build{}
+	}
+	if len(bs) > 0 {
+		out.NextCursor = nextCursor(len(bs), pg.Limit, bs[len(bs)-1].ID)
+	}
+	return c.JSON(http.StatusOK, out)
+}
+
+type buildPatchJSON struct {
+	Status *service.BuildStatus `json:"status"`
+	Notes  *string              `json:"notes"`
+}
+
+func (s *Server) updateBuild(c echo.Context) error {
+	id, err := pathID(c)
+	if err != nil {
+		return err
+	}
+	var in buildPatchJSON
+	if err := decode(c, &in); err != nil {
+		return err
+	}
+	b, err := s.svc.UpdateBuild(c.Request().Context(), principal(c), id, c.Request().Header.Get("If-Match"), service.BuildPatch(in))
+	if err != nil {
+		return err
+	}
+	c.Response().Header().Set("ETag", b.ETag())
+	return c.JSON(http.StatusOK, b)
+}
+
+func (s *Server) getPriceList(c echo.Context) error {
+	pl, err := s.svc.GetPriceList(c.Request().Context(), principal(c))
+	if err != nil {
+		return err
+	}
+	c.Response().Header().Set("ETag", pl.ETag())
+	return c.JSON(http.StatusOK, pl)
+}
+
+func (s *Server) putPriceList(c echo.Context) error {
+	var in quote.PriceList
+	if err := decode(c, &in); err != nil {
+		return err
+	}
+	pl, err := s.svc.PutPriceList(c.Request().Context(), principal(c), c.Request().Header.Get("If-Match"), in)
+	if err != nil {
+		return err
+	}
+	c.Response().Header().Set("ETag", pl.ETag())
+	return c.JSON(http.StatusOK, pl)
+}
+
+func (s *Server) createQuote(c echo.Context) error {
+	var in struct {
+		BuildID uuid.UUID `json:"build_id"`
+	}
+	if err := decode(c, &in); err != nil {
+		return err
+	}
+	q, err := s.svc.CreateQuote(c.Request().Context(), principal(c), in.BuildID)
+	if err != nil {
+		return err
+	}
+	c.Response().Header().Set("Location", "/v1/quotes/"+q.ID.String())
+	return c.JSON(http.StatusCreated, q)
+}
+
+func (s *Server) getQuote(c echo.Context) error {
+	id, err := pathID(c)
+	if err != nil {
+		return err
+	}
+	q, err := s.svc.GetQuote(c.Request().Context(), principal(c), id)
+	if err != nil {
+		return err
+	}
+	return c.JSON(http.StatusOK, q)
+}
+
+func (s *Server) acceptQuote(c echo.Context) error {
+	id, err := pathID(c)
+	if err != nil {
+		return err
+	}
+	q, err := s.svc.AcceptQuote(c.Request().Context(), principal(c), id)
+	if err != nil {
+		return err
+	}
+	return c.JSON(http.StatusOK, q)
+}
+
+type buildAuditJSON struct {
+	CalibrationID uuid.UUID              `json:"calibration_id"`
+	Readings      []service.AuditReading `json:"readings"`
+	TolerancePct  *float64               `json:"tolerance_pct"`
+	Notes         string                 `json:"notes"`
+}
+
+func (s *Server) createBuildAudit(c echo.Context) error {
+	id, err := pathID(c)
+	if err != nil {
+		return err
+	}
+	var in buildAuditJSON
+	if err := decode(c, &in); err != nil {
+		return err
+	}
+	a, err := s.svc.RecordBuildAudit(c.Request().Context(), principal(c), id, service.BuildAuditInput(in))
+	if err != nil {
+		return err
+	}
+	return c.JSON(http.StatusCreated, a)
+}
+
+func (s *Server) listBuildAudits(c echo.Context) error {
+	id, err := pathID(c)
+	if err != nil {
+		return err
+	}
+	pg, err := page(c)
+	if err != nil {
+		return err
+	}
+	as, err := s.svc.ListBuildAudits(c.Request().Context(), principal(c), id, pg)
+	if err != nil {
+		return err
+	}
+	out := listJSON[service.BuildTensionAudit]{Items: as}
+	if out.Items == nil {
+		out.Items = []service.BuildTensionAudit{}
+	}
+	if len(as) > 0 {
+		out.NextCursor = nextCursor(len(as), pg.Limit, as[len(as)-1].ID)
+	}
+	return c.JSON(http.StatusOK, out)
+}

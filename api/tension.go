@@ -1,0 +1,380 @@
+package api
+
+import (
+	"bytes"
+	"encoding/json"
+	"net/http"
+	"strconv"
+	"time"
+
+	"github.com/google/uuid"
+	"github.com/labstack/echo/v4"
+
+	"wheelbench/service"
+)
+
+type toolJSON struct {
+	ID             uuid.UUID `json:"id"`
+	LocationID     uuid.UUID `json:"location_id"`
+	Label          string    `json:"label"`
+	Serial         string    `json:"serial"`
+	UnitMM         float64   `json:"unit_mm"`
+	MeasuredSpanMM *float64  `json:"measured_span_mm,omitempty"`
+	Notes          string    `json:"notes"`
+	CreatedAt      time.Time `json:"created_at"`
+	UpdatedAt      time.Time `json:"updated_at"`
+}
+
+func toToolJSON(t service.Tool) toolJSON {
+	return toolJSON{ID: t.ID, LocationID: t.LocationID, Label: t.Label, Serial: t.Serial, UnitMM: t.UnitMM,
+		MeasuredSpanMM: t.MeasuredSpanMM, Notes: t.Notes, CreatedAt: t.CreatedAt.UTC(), UpdatedAt: t.UpdatedAt.UTC()}
+}
+
+func (s *Server) listTools(c echo.Context) error {
+	p, err := page(c)
+	if err != nil {
+		return err
+	}
+	ts, err := s.svc.ListTools(c.Request().Context(), principal(c), p)
+	if err != nil {
+		return err
+	}
+	out := listJSON[toolJSON]{Items: make([]toolJSON, 0, len(ts))}
+	for _, t := range ts {
+		out.Items = append(out.Items, toToolJSON(t))
+	}
+	if len(ts) > 0 {
+		out.NextCursor = nextCursor(len(ts), p.Limit, ts[len(ts)-1].ID)
+	}
+	return c.JSON(http.StatusOK, out)
+}
+
+type toolCreateJSON struct {
+	LocationID     uuid.UUID `json:"location_id"`
+	Label          string    `json:"label"`
+	Serial         string    `json:"serial"`
+	UnitMM         *float64  `json:"unit_mm"`
+	MeasuredSpanMM *float64  `json:"measured_span_mm"`
+	Notes          string    `json:"notes"`
+}
+
+func (s *Server) createTool(c echo.Context) error {
+	var in toolCreateJSON
+	if err := decode(c, &in); err != nil {
+		return err
+	}
+	t, err := s.svc.CreateTool(c.Request().Context(), principal(c), service.ToolInput{LocationID: in.LocationID,
+		Label: in.Label, Serial: in.Serial, UnitMM: in.UnitMM, MeasuredSpanMM: in.MeasuredSpanMM, Notes: in.Notes})
+	if err != nil {
+		return err
+	}
+	c.Response().Header().Set("ETag", t.ETag())
+	c.Response().Header().Set("Location", "/v1/tools/"+t.ID.String())
+	return c.JSON(http.StatusCreated, toToolJSON(t))
+}
+
+func (s *Server) getTool(c echo.Context) error {
+	id, err := pathID(c)
+	if err != nil {
+		return err
+	}
+	t, err := s.svc.GetTool(c.Request().Context(), principal(c), id)
+	if err != nil {
+		return err
+	}
+	c.Response().Header().Set("ETag", t.ETag())
+	return c.JSON(http.StatusOK, toToolJSON(t))
+}
+
+// nullableFloat tells an absent field (Set false) from null (Set, Value nil).
+type nullableFloat struct {
+	Set   bool
+	Value *float64
+}
+
+func (n *nullableFloat) UnmarshalJSON(b []byte) error {
+	n.Set = true
+	if bytes.Equal(b, []byte("null")) {
+		return nil
+	}
+	return json.Unmarshal(b, &n.Value)
+}
+
+type toolPatchJSON struct {
+	LocationID     *uuid.UUID    `json:"location_id"`
+	Label          *string       `json:"label"`
+	Serial         *string       `json:"serial"`
+	UnitMM         *float64      `json:"unit_mm"`
+	MeasuredSpanMM nullableFloat `json:"measured_span_mm"`
+	Notes          *string       `json:"notes"`
+}
+
+func (s *Server) updateTool(c echo.Context) error {
+	id, err := pathID(c)
+	if err != nil {
+		return err
+	}
+	var in toolPatchJSON
+	if err := decode(c, &in); err != nil {
+		return err
+	}
+	t, err := s.svc.UpdateTool(c.Request().Context(), principal(c), id, c.Request().Header.Get("If-Match"),
+		service.ToolPatch{LocationID: in.LocationID, Label: in.Label, Serial: in.Serial, UnitMM: in.UnitMM,
+			MeasuredSpanMM: in.MeasuredSpanMM.Value, ClearMeasuredSpan: in.MeasuredSpanMM.Set && in.MeasuredSpanMM.Value == nil,
+			Notes: in.Notes})
+	if err != nil {
+		return err
+	}
+	c.Response().Header().Set("ETag", t.ETag())
+	return c.JSON(http.StatusOK, toToolJSON(t))
+}
+
+type modelParamJSON struct {
+	Name  string  `json:"name"`
+	Value float64 `json:"value"`
+	SE    float64 `json:"se"`
+}
+
+type calibrationModelJSON struct {
+	Identified         bool                     `json:"identified"`
+	UnidentifiedReason string                   `json:"unidentified_reason,omitempty"`
+	ModelVersion       int                      `json:"model_version"`
+	UnitMM             float64                  `json:"unit_mm"`
+	MeasuredSpanMM     *float64                 `json:"measured_span_mm,omitempty"`
+	TensionRangeN      [2]float64               `json:"tension_range_n"`
+	Parameters         []modelParamJSON         `json:"parameters,omitempty"`
+	ResidualSDUnits    *float64                 `json:"residual_sd_units,omitempty"`
+	Points             *int                     `json:"points,omitempty"`
+	DoF                *int                     `json:"dof,omitempty"`
+	T975               *float64                 `json:"t_975,omitempty"`
+	ConditionNumber    *float64                 `json:"condition_number,omitempty"`
+	Iterations         *int                     `json:"iterations,omitempty"`
+	Warnings           []service.TensionWarning `json:"warnings"`
+}
+
+type calibrationJSON struct {
+	ID        uuid.UUID                   `json:"id"`
+	ToolID    uuid.UUID                   `json:"tool_id"`
+	Version   int                         `json:"version"`
+	Source    string                      `json:"source"`
+	Notes     string                      `json:"notes"`
+	Tool      service.ToolFacts           `json:"tool"`
+	Columns   []service.CalibrationColumn `json:"columns"`
+	Model     calibrationModelJSON        `json:"model"`
+	CreatedAt time.Time                   `json:"created_at"`
+}
+
+func toCalibrationJSON(cal service.Calibration) calibrationJSON {
+	out := calibrationJSON{ID: cal.ID, ToolID: cal.ToolID, Version: cal.Version, Source: cal.Source, Notes: cal.Notes,
+		Tool: cal.Tool, Columns: cal.Columns, CreatedAt: cal.CreatedAt.UTC()}
+	if m := cal.Model; m != nil {
+		mj := calibrationModelJSON{ModelVersion: m.Version, UnitMM: m.UnitMM, MeasuredSpanMM: m.MeasuredSpanMM,
+			TensionRangeN: m.TensionRangeN, UnidentifiedReason: m.Unidentified, Warnings: m.Warnings}
+		if mj.Warnings == nil {
+			mj.Warnings = []service.TensionWarning{}
+		}
+		if ph := m.Physical; ph != nil {
+			mj.Identified = true
+			for i, name := range ph.ParamNames {
+				mj.Parameters = append(mj.Parameters, modelParamJSON{Name: name, Value: ph.Params[i], SE: ph.SE[i]})
+			}
+			mj.ResidualSDUnits, mj.Points, mj.DoF = &ph.ResidualSDUnits, &ph.Points, &ph.DoF
+			mj.T975, mj.ConditionNumber, mj.Iterations = &ph.T975, &ph.ConditionNumber, &ph.Iterations
+		}
+		out.Model = mj
+	}
+	return out
+}
+
+type calibrationCreateJSON struct {
+	Source  string                      `json:"source"`
+	Columns []service.CalibrationColumn `json:"columns"`
+	Notes   string                      `json:"notes"`
+}
+
+func (s *Server) publishCalibration(c echo.Context) error {
+	toolID, err := pathID(c)
+	if err != nil {
+		return err
+	}
+	var in calibrationCreateJSON
+	if err := decode(c, &in); err != nil {
+		return err
+	}
+	cal, err := s.svc.PublishCalibration(c.Request().Context(), principal(c), toolID,
+		service.CalibrationInput{Source: in.Source, Columns: in.Columns, Notes: in.Notes})
+	if err != nil {
+		return err
+	}
+	c.Response().Header().Set("Location", "/v1/calibrations/"+cal.ID.String())
+	return c.JSON(http.StatusCreated, toCalibrationJSON(cal))
+}
+
+func (s *Server) listCalibrations(c echo.Context) error {
+	toolID, err := pathID(c)
+	if err != nil {
+		return err
+	}
+	p, err := page(c)
+	if err != nil {
+		return err
+	}
+	cs, err := s.svc.ListCalibrations(c.Request().Context(), principal(c), toolID, p)
+	if err != nil {
+		return err
+	}
+	out := listJSON[calibrationJSON]{Items: make([]calibrationJSON, 0, len(cs))}
+	for _, cal := range cs {
+		out.Items = append(out.Items, toCalibrationJSON(cal))
+	}
+	if len(cs) > 0 {
+		out.NextCursor = nextCursor(len(cs), p.Limit, cs[len(cs)-1].ID)
+	}
+	return c.JSON(http.StatusOK, out)
+}
+
+func (s *Server) getCalibration(c echo.Context) error {
+	id, err := pathID(c)
+	if err != nil {
+		return err
+	}
+	cal, err := s.svc.GetCalibration(c.Request().Context(), principal(c), id)
+	if err != nil {
+		return err
+	}
+	return c.JSON(http.StatusOK, toCalibrationJSON(cal))
+}
+
+func (s *Server) getCalibrationChart(c echo.Context) error {
+	id, err := pathID(c)
+	if err != nil {
+		return err
+	}
+	var spec *service.SpokeSpec
+	num := func(name string) (float64, error) {
+		v := c.QueryParam(name)
+		if v == "" {
+			return 0, nil
+		}
+		f, err := strconv.ParseFloat(v, 64)
+		if err != nil {
+			return 0, service.Invalid("query:"+name, "%s must be a number", name)
+		}
+		return f, nil
+	}
+	d, err1 := num("diameter_mm")
+	w, err2 := num("width_mm")
+	t, err3 := num("thickness_mm")
+	e, err4 := num("e_gpa")
+	for _, err := range []error{err1, err2, err3, err4} {
+		if err != nil {
+			return err
+		}
+	}
+	if d != 0 || w != 0 || t != 0 || c.QueryParam("profile") != "" {
+		spec = &service.SpokeSpec{Profile: c.QueryParam("profile"), DiameterMM: d, WidthMM: w, ThicknessMM: t,
+			Material: c.QueryParam("material")}
+		if c.QueryParam("e_gpa") != "" {
+			spec.EGPa = &e
+		} else if spec.Material == "" {
+			spec.Material = "stainless_steel"
+		}
+	}
+	svg, err := s.svc.CalibrationChart(c.Request().Context(), principal(c), id, spec)
+	if err != nil {
+		return err
+	}
+	c.Response().Header().Set("Cache-Control", "private, max-age=86400")
+	return c.Blob(http.StatusOK, "image/svg+xml", svg)
+}
+
+// inlineCalibrationJSON is a calibration sent with a computation.
+type inlineCalibrationJSON struct {
+	Source  string                      `json:"source"`
+	Columns []service.CalibrationColumn `json:"columns"`
+	Tool    service.ToolFacts           `json:"tool"`
+}
+
+func calibrationRef(id *uuid.UUID, inline *inlineCalibrationJSON) service.CalibrationRef {
+	ref := service.CalibrationRef{ID: id}
+	if inline != nil {
+		ref.Inline = &service.InlineCalibration{Source: inline.Source, Columns: inline.Columns, Tool: inline.Tool}
+	}
+	return ref
+}
+
+type calibrationUsedJSON struct {
+	ID      uuid.UUID `json:"id"`
+	ToolID  uuid.UUID `json:"tool_id"`
+	Version int       `json:"version"`
+}
+
+func toCalibrationUsed(cal *service.Calibration) *calibrationUsedJSON {
+	if cal == nil {
+		return nil
+	}
+	return &calibrationUsedJSON{ID: cal.ID, ToolID: cal.ToolID, Version: cal.Version}
+}
+
+type conversionJSON struct {
+	CalibrationID    *uuid.UUID             `json:"calibration_id"`
+	Calibration      *inlineCalibrationJSON `json:"calibration"`
+	Spoke            service.SpokeSpec      `json:"spoke"`
+	Readings         []float64              `json:"readings"`
+	TargetTensionN   *float64               `json:"target_tension_n"`
+	TargetTensionKgf *float64               `json:"target_tension_kgf"`
+	TargetTensionLbf *float64               `json:"target_tension_lbf"`
+}
+
+func (s *Server) convertTension(c echo.Context) error {
+	var in conversionJSON
+	if err := decode(c, &in); err != nil {
+		return err
+	}
+	out, err := s.svc.ConvertTension(c.Request().Context(), principal(c), calibrationRef(in.CalibrationID, in.Calibration),
+		service.ConversionRequest{Spoke: in.Spoke, Readings: in.Readings, TargetTensionN: in.TargetTensionN,
+			TargetTensionKgf: in.TargetTensionKgf, TargetTensionLbf: in.TargetTensionLbf})
+	if err != nil {
+		return err
+	}
+	return c.JSON(http.StatusOK, struct {
+		Calibration *calibrationUsedJSON `json:"calibration,omitempty"`
+		service.ConversionResponse
+	}{toCalibrationUsed(out.Calibration), out.ConversionResponse})
+}
+
+type auditJSON struct {
+	CalibrationID           *uuid.UUID             `json:"calibration_id"`
+	Calibration             *inlineCalibrationJSON `json:"calibration"`
+	Spoke                   service.SpokeSpec      `json:"spoke"`
+	SpokeLeft               *service.SpokeSpec     `json:"spoke_left"`
+	SpokeRight              *service.SpokeSpec     `json:"spoke_right"`
+	Readings                []service.AuditReading `json:"readings"`
+	TargetTensionN          *float64               `json:"target_tension_n"`
+	TargetTensionKgf        *float64               `json:"target_tension_kgf"`
+	TargetTensionLbf        *float64               `json:"target_tension_lbf"`
+	TargetSide              string                 `json:"target_side"`
+	TolerancePct            *float64               `json:"tolerance_pct"`
+	GeometricLeftRightRatio *float64               `json:"geometric_left_right_ratio"`
+}
+
+func (s *Server) auditTension(c echo.Context) error {
+	var in auditJSON
+	if err := decode(c, &in); err != nil {
+		return err
+	}
+	out, err := s.svc.AuditTension(c.Request().Context(), principal(c), calibrationRef(in.CalibrationID, in.Calibration),
+		service.AuditRequest{Spoke: in.Spoke, SpokeLeft: in.SpokeLeft, SpokeRight: in.SpokeRight, Readings: in.Readings,
+			TargetTensionN: in.TargetTensionN, TargetTensionKgf: in.TargetTensionKgf, TargetTensionLbf: in.TargetTensionLbf,
+			TargetSide: in.TargetSide, TolerancePct: in.TolerancePct, GeometricLeftRightRatio: in.GeometricLeftRightRatio})
+	if err != nil {
+		return err
+	}
+	if out.Spokes == nil {
+		out.Spokes = []service.SpokeVerdict{}
+	}
+	return c.JSON(http.StatusOK, struct {
+		Calibration *calibrationUsedJSON `json:"calibration,omitempty"`
+		service.AuditResult
+	}{toCalibrationUsed(out.Calibration), out.AuditResult})
+}

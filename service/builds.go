@@ -1,0 +1,442 @@
+package service
+
+import (
+	"bytes"
+	"context"
+	"encoding/json"
+	"errors"
+	"fmt"
+	"strings"
+	"time"
+	"unicode/utf8"
+
+	"github.com/google/uuid"
+
+	"wheelbench/service/geometry"
+	"wheelbench/service/spoke"
+)
+
+// BuildStatus is where a build is in the shop.
+type BuildStatus string
+
+// Build statuses: draft → quoted → ordered → in_progress → done, or
+// cancelled from any but done.
+const (
+	BuildDraft      BuildStatus = "draft"
+	BuildQuoted     BuildStatus = "quoted"
+	BuildOrdered    BuildStatus = "ordered"
+	BuildInProgress BuildStatus = "in_progress"
+	BuildDone       BuildStatus = "done"
+	BuildCancelled  BuildStatus = "cancelled"
+)
+
+var nextStatus = map[BuildStatus]BuildStatus{
+	BuildDraft: BuildQuoted, BuildQuoted: BuildOrdered, BuildOrdered: BuildInProgress, BuildInProgress: BuildDone,
+}
+
+// Valid reports whether s is a known status.
+func (s BuildStatus) Valid() bool {
+	_, ok := nextStatus[s]
+	return ok || s == BuildDone || s == BuildCancelled
+}
+
+// CanMoveTo reports whether a build may go from s to t: one step forward,
+// or to cancelled from anything but done (and cancelled).
+func (s BuildStatus) CanMoveTo(t BuildStatus) bool {
+	if t == BuildCancelled {
+		return s != BuildDone && s != BuildCancelled
+	}
+	return nextStatus[s] == t
+}
+
+// Build is one wheel job: the spec as sent, and the snapshot computed from
+// it when the build was created (kept for warranty, never recomputed).
+type Build struct {
+	ID          uuid.UUID       `json:"id"`
+	OrgID       uuid.UUID       `json:"-"`
+	LocationID  uuid.UUID       `json:"location_id"`
+	ExternalRef string          `json:"external_ref"`
+	Status      BuildStatus     `json:"status"`
+	Spec        json.RawMessage `json:"spec"`
+	Snapshot    BuildSnapshot   `json:"snapshot"`
+	Notes       string          `json:"notes"`
+	Version     int64           `json:"-"`
+	CreatedAt   time.Time       `json:"created_at"`
+	UpdatedAt   time.Time       `json:"updated_at"`
+}
+
+// ETag is the build's entity tag.
+func (b Build) ETag() string { return ETag(b.ID, b.Version) }
+
+// BuildSnapshot is what the service computed for a build.
+type BuildSnapshot struct {
+	// Parts names the catalog parts the spec referred to, by role.
+	Parts BuildParts `json:"parts"`
+	// Resolved is the compatibility input with catalog parts filled in.
+	Resolved CompatibilityInput `json:"resolved_spec"`
+	// StockSource says where the stock lengths came from: "location_stock"
+	// (the spoke part's stock at the build's location), "spec" or "none".
+	StockSource string `json:"stock_source"`
+	// Compatibility is the fit verdict, findings, changes and the lengths.
+	Compatibility CompatibilityReport `json:"compatibility"`
+	// TargetTensionsN are each side's tensions at the target.
+	TargetTensionsN Sides `json:"target_tensions_n"`
+	// TargetReadings are the dial readings to aim for on the location's
+	// default tensiometer, when it has a calibration.
+	TargetReadings *TargetReadings `json:"target_readings,omitempty"`
+	Cautions       []string        `json:"cautions"`
+}
+
+// Sides is a per-side pair.
+type Sides struct {
+	Left  float64 `json:"left"`
+	Right float64 `json:"right"`
+}
+
+// TargetReadings are the readings to aim for per side on one tool.
+type TargetReadings struct {
+	ToolID        uuid.UUID       `json:"tool_id"`
+	CalibrationID uuid.UUID       `json:"calibration_id"`
+	Left          json.RawMessage `json:"left"`
+	Right         json.RawMessage `json:"right"`
+}
+
+// BuildParts are the catalog part ids a build uses (nil: given inline).
+type BuildParts struct {
+	Hub     *uuid.UUID  `json:"hub,omitempty"`
+	Rim     *uuid.UUID  `json:"rim,omitempty"`
+	Spoke   *uuid.UUID  `json:"spoke,omitempty"`
+	Nipple  *uuid.UUID  `json:"nipple,omitempty"`
+	Tyre    *uuid.UUID  `json:"tyre,omitempty"`
+	Washers []uuid.UUID `json:"washers,omitempty"`
+}
+
+// BuildSpec is a build's spec: the compatibility-check body in which each
+// part may instead be named by a catalog id (hub_id, rim_id, spoke_id,
+// nipple_id, tyre_id, washer_ids).
+type BuildSpec struct {
+	SpokeCount     int             `json:"spoke_count"`
+	Hub            json.RawMessage `json:"hub,omitempty"`
+	HubID          *uuid.UUID      `json:"hub_id,omitempty"`
+	Rim            json.RawMessage `json:"rim,omitempty"`
+	RimID          *uuid.UUID      `json:"rim_id,omitempty"`
+	Spoke          json.RawMessage `json:"spoke,omitempty"`
+	SpokeID        *uuid.UUID      `json:"spoke_id,omitempty"`
+	Nipple         json.RawMessage `json:"nipple,omitempty"`
+	NippleID       *uuid.UUID      `json:"nipple_id,omitempty"`
+	Washers        json.RawMessage `json:"washers,omitempty"`
+	WasherIDs      []uuid.UUID     `json:"washer_ids,omitempty"`
+	Tyre           json.RawMessage `json:"tyre,omitempty"`
+	TyreID         *uuid.UUID      `json:"tyre_id,omitempty"`
+	FrameSpacingMM *float64        `json:"frame_spacing_mm,omitempty"`
+	Crosses        json.RawMessage `json:"crosses"`
+	TargetTensionN float64         `json:"target_tension_n"`
+	Stock          *geometry.Stock `json:"stock,omitempty"`
+}
+
+// BuildInput creates a build.
+type BuildInput struct {
+	Spec        json.RawMessage
+	ExternalRef string
+	LocationID  uuid.UUID
+}
+
+// BuildPatch changes a build's status or notes.
+type BuildPatch struct {
+	Status *BuildStatus
+	Notes  *string
+}
+
+// BuildFilter narrows a build list.
+type BuildFilter struct {
+	Status       BuildStatus
+	LocationID   *uuid.UUID
+	ExternalRef  *string
+	UpdatedAfter *time.Time
+}
+
+// prefixPointers moves every field error's pointer under prefix.
+func prefixPointers(err error, prefix string) error {
+	var out []error
+	var walk func(e error)
+	walk = func(e error) {
+		if fe, ok := e.(interface {
+			error
+			FieldPointer() string
+			IsUnprocessable() bool
+		}); ok {
+			out = append(out, &FieldError{Pointer: prefix + fe.FieldPointer(), Message: strings.TrimPrefix(fe.Error(), fe.FieldPointer()+": "), Unprocessable: fe.IsUnprocessable()})
+			return
+		}
+		if u, ok := e.(interface{ Unwrap() []error }); ok {
+			for _, x := range u.Unwrap() {
+				walk(x)
+			}
+			return
+		}
+		out = append(out, e)
+	}
+	walk(err)
+	return errors.Join(out...)
+}
+
+// resolvePart returns the dimensions of the part named inline or by id.
+func (s *Service) resolvePart(ctx context.Context, orgID uuid.UUID, kind PartKind, inline json.RawMessage, id *uuid.UUID, field string) (json.RawMessage, *uuid.UUID, error) {
+	hasInline := len(bytes.TrimSpace(inline)) > 0 && !bytes.Equal(bytes.TrimSpace(inline), []byte("null"))
+	switch {
+	case hasInline && id != nil:
+		return nil, nil, Invalid("/spec/"+field+"_id", "give %s inline or as %s_id, not both", field, field)
+	case id != nil:
+		p, err := s.store.GetPart(ctx, orgID, *id)
+		if errors.Is(err, ErrNotFound) {
+			return nil, nil, Unprocessable("/spec/"+field+"_id", "no such part in this organisation's catalog")
+		}
+		if err != nil {
+			return nil, nil, err
+		}
+		if p.Kind != kind {
+			return nil, nil, Unprocessable("/spec/"+field+"_id", "part %s is a %s, not a %s", id, p.Kind, kind)
+		}
+		return p.Dimensions, id, nil
+	case hasInline:
+		return inline, nil, nil
+	}
+	return nil, nil, nil
+}
+
+// resolveSpec turns a build spec into a compatibility input, reading the
+// catalog parts it names.
+func (s *Service) resolveSpec(ctx context.Context, orgID, locationID uuid.UUID, raw json.RawMessage) (CompatibilityInput, BuildParts, string, error) {
+	var spec BuildSpec
+	dec := json.NewDecoder(bytes.NewReader(raw))
+	dec.DisallowUnknownFields()
+	if err := dec.Decode(&spec); err != nil {
+		return CompatibilityInput{}, BuildParts{}, "", Invalid("/spec", "not a valid build spec: %s", strings.TrimPrefix(err.Error(), "json: "))
+	}
+	var parts BuildParts
+	obj := map[string]json.RawMessage{}
+	var errs []error
+	for _, p := range []struct {
+		kind   PartKind
+		field  string
+		inline json.RawMessage
+		id     *uuid.UUID
+		dst    **uuid.UUID
+	}{
+		{PartHub, "hub", spec.Hub, spec.HubID, &parts.Hub},
+		{PartRim, "rim", spec.Rim, spec.RimID, &parts.Rim},
+		{PartSpoke, "spoke", spec.Spoke, spec.SpokeID, &parts.Spoke},
+		{PartNipple, "nipple", spec.Nipple, spec.NippleID, &parts.Nipple},
+		{PartTyre, "tyre", spec.Tyre, spec.TyreID, &parts.Tyre},
+	} {
+		dims, id, err := s.resolvePart(ctx, orgID, p.kind, p.inline, p.id, p.field)
+		if err != nil {
+			errs = append(errs, err)
+			continue
+		}
+		if dims == nil {
+			if p.kind != PartTyre {
+				errs = append(errs, Invalid("/spec/"+p.field, "give the %s inline or as %s_id", p.field, p.field))
+			}
+			continue
+		}
+		obj[p.field] = dims
+		*p.dst = id
+	}
+	washers := spec.Washers
+	if len(spec.WasherIDs) > 0 {
+		if len(bytes.TrimSpace(washers)) > 0 {
+			errs = append(errs, Invalid("/spec/washer_ids", "give washers inline or as washer_ids, not both"))
+		}
+		var list []json.RawMessage
+		for i, id := range spec.WasherIDs {
+			dims, _, err := s.resolvePart(ctx, orgID, PartWasher, nil, &id, "washer")
+			var fe *FieldError
+			if errors.As(err, &fe) {
+				fe.Pointer = fmt.Sprintf("/spec/washer_ids/%d", i)
+			}
+			if err != nil {
+				errs = append(errs, err)
+				continue
+			}
+			list = append(list, dims)
+			parts.Washers = append(parts.Washers, id)
+		}
+		washers, _ = json.Marshal(list)
+	}
+	if err := errors.Join(errs...); err != nil {
+		return CompatibilityInput{}, parts, "", err
+	}
+	if len(bytes.TrimSpace(washers)) > 0 {
+		obj["washers"] = washers
+	}
+	obj["spoke_count"], _ = json.Marshal(spec.SpokeCount)
+	obj["crosses"] = spec.Crosses
+	obj["target_tension_n"], _ = json.Marshal(spec.TargetTensionN)
+	if spec.FrameSpacingMM != nil {
+		obj["frame_spacing_mm"], _ = json.Marshal(*spec.FrameSpacingMM)
+	}
+	merged, _ := json.Marshal(obj)
+	var in CompatibilityInput
+	dec = json.NewDecoder(bytes.NewReader(merged))
+	dec.DisallowUnknownFields()
+	if err := dec.Decode(&in.Input); err != nil {
+		return CompatibilityInput{}, parts, "", Invalid("/spec", "not a valid build spec: %s", strings.TrimPrefix(err.Error(), "json: "))
+	}
+	source := "none"
+	if spec.Stock != nil {
+		in.Stock, source = spec.Stock, "spec"
+	} else if parts.Spoke != nil {
+		st, err := s.store.GetPartStock(ctx, orgID, *parts.Spoke)
+		if err != nil {
+			return CompatibilityInput{}, parts, "", err
+		}
+		var lengths []float64
+		for _, l := range st.Levels {
+			if l.LocationID == locationID && l.Quantity > 0 && l.LengthMM > 0 {
+				lengths = append(lengths, l.LengthMM)
+			}
+		}
+		if len(lengths) > 0 {
+			in.Stock, source = &geometry.Stock{LengthsMM: lengths}, "location_stock"
+		}
+	}
+	return in, parts, source, nil
+}
+
+// CreateBuild computes a build's snapshot — parts resolved, fit verdict,
+// spoke lengths and stock lengths, target tensions and readings — and
+// stores it as a draft.
+func (s *Service) CreateBuild(ctx context.Context, p Principal, in BuildInput) (Build, error) {
+	if utf8.RuneCountInString(in.ExternalRef) > 200 {
+		return Build{}, Invalid("/external_ref", "external_ref must be at most 200 characters")
+	}
+	if _, err := s.store.GetLocation(ctx, p.OrgID, in.LocationID); errors.Is(err, ErrNotFound) {
+		return Build{}, Unprocessable("/location_id", "no such location in this organisation")
+	} else if err != nil {
+		return Build{}, err
+	}
+	resolved, parts, source, err := s.resolveSpec(ctx, p.OrgID, in.LocationID, in.Spec)
+	if err != nil {
+		return Build{}, err
+	}
+	rep, err := s.CheckCompatibility(resolved)
+	if err != nil {
+		return Build{}, prefixPointers(err, "/spec")
+	}
+	snap := BuildSnapshot{Parts: parts, Resolved: resolved, StockSource: source, Compatibility: rep,
+		TargetTensionsN: Sides{Left: rep.Left.TensionN, Right: rep.Right.TensionN}, Cautions: rep.Cautions}
+	if tr, cautions, err := s.targetReadings(ctx, p, in.LocationID, resolved, snap.TargetTensionsN); err != nil {
+		return Build{}, err
+	} else if tr != nil {
+		snap.TargetReadings = tr
+		snap.Cautions = appendUnique(snap.Cautions, cautions...)
+	}
+	if snap.Cautions == nil {
+		snap.Cautions = []string{}
+	}
+	now := s.now().UTC()
+	b := Build{ID: uuid.Must(uuid.NewV7()), OrgID: p.OrgID, LocationID: in.LocationID, ExternalRef: in.ExternalRef,
+		Status: BuildDraft, Spec: in.Spec, Snapshot: snap, Version: 1, CreatedAt: now, UpdatedAt: now}
+	if err := s.store.CreateBuild(ctx, b); err != nil {
+		return Build{}, err
+	}
+	return b, nil
+}
+
+func appendUnique(list []string, more ...string) []string {
+	for _, m := range more {
+		found := false
+		for _, l := range list {
+			found = found || l == m
+		}
+		if !found {
+			list = append(list, m)
+		}
+	}
+	return list
+}
+
+// targetReadings converts each side's target tension to the reading to aim
+// for on the location's default tensiometer (its newest calibration). nil
+// when the location has no calibrated tool; a side the calibration cannot
+// convert carries the reason instead of a reading, and a caution.
+func (s *Service) targetReadings(ctx context.Context, p Principal, locationID uuid.UUID, in CompatibilityInput, t Sides) (*TargetReadings, []string, error) {
+	cal, err := s.store.LatestCalibrationAt(ctx, p.OrgID, locationID)
+	if errors.Is(err, ErrNotFound) {
+		return nil, nil, nil
+	}
+	if err != nil {
+		return nil, nil, err
+	}
+	if cal.Model == nil {
+		return nil, nil, nil
+	}
+	spec := SpokeSpec{Profile: "round", Material: "stainless_steel"}
+	if in.Spoke.Material != nil {
+		spec.Material = *in.Spoke.Material
+	}
+	switch {
+	case in.Spoke.DiameterMM != nil:
+		spec.DiameterMM = *in.Spoke.DiameterMM
+	case in.Spoke.Gauge != nil:
+		d, _ := spoke.GaugeDiameterMM(*in.Spoke.Gauge)
+		spec.DiameterMM = d
+	}
+	out := &TargetReadings{ToolID: cal.ToolID, CalibrationID: cal.ID}
+	var cautions []string
+	for _, side := range []struct {
+		name string
+		n    float64
+		dst  *json.RawMessage
+	}{{"left", t.Left, &out.Left}, {"right", t.Right, &out.Right}} {
+		tg, err := cal.Model.Target(spec, side.n)
+		if err != nil {
+			msg := strings.TrimPrefix(err.Error(), "json: ")
+			*side.dst, _ = json.Marshal(map[string]string{"refused": msg})
+			cautions = append(cautions, fmt.Sprintf("The %s side's target reading could not be computed from the location's tensiometer calibration (%s); calibrate the tool for this spoke before tensioning.", side.name, msg))
+			continue
+		}
+		*side.dst, _ = json.Marshal(tg)
+		cautions = append(cautions, tg.Cautions...)
+	}
+	return out, cautions, nil
+}
+
+// GetBuild reads one build.
+func (s *Service) GetBuild(ctx context.Context, p Principal, id uuid.UUID) (Build, error) {
+	return s.store.GetBuild(ctx, p.OrgID, id)
+}
+
+// ListBuilds lists builds by id with filters.
+func (s *Service) ListBuilds(ctx context.Context, p Principal, f BuildFilter, page Page) ([]Build, error) {
+	if f.Status != "" && !f.Status.Valid() {
+		return nil, Invalid("query:status", "status must be one of draft, quoted, ordered, in_progress, done, cancelled")
+	}
+	return s.store.ListBuilds(ctx, p.OrgID, f, page)
+}
+
+// UpdateBuild moves a build's status one step (or to cancelled) and sets
+// its notes, if ifMatch is its current ETag. An illegal move is ErrConflict.
+func (s *Service) UpdateBuild(ctx context.Context, p Principal, id uuid.UUID, ifMatch string, patch BuildPatch) (Build, error) {
+	if patch.Status != nil && !patch.Status.Valid() {
+		return Build{}, Invalid("/status", "status must be one of draft, quoted, ordered, in_progress, done, cancelled")
+	}
+	if patch.Notes != nil && utf8.RuneCountInString(*patch.Notes) > 10000 {
+		return Build{}, Invalid("/notes", "notes must be at most 10000 characters")
+	}
+	cur, err := s.store.GetBuild(ctx, p.OrgID, id)
+	if err != nil {
+		return Build{}, err
+	}
+	if err := checkIfMatch(ifMatch, cur.ETag(), "build"); err != nil {
+		return Build{}, err
+	}
+	if patch.Status != nil && *patch.Status != cur.Status && !cur.Status.CanMoveTo(*patch.Status) {
+		return Build{}, fmt.Errorf("%w: a build cannot move from %s to %s", ErrConflict, cur.Status, *patch.Status)
+	}
+	if patch.Status != nil && *patch.Status == cur.Status {
+		patch.Status = nil
+	}
+	return s.store.UpdateBuild(ctx, p.OrgID, id, cur.Version, cur.Status, patch)
+}

@@ -1,0 +1,173 @@
+package service
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"strings"
+
+	"github.com/google/uuid"
+
+	"wheelbench/service/tension"
+)
+
+// The tension types that cross the service boundary. The HTTP layer reads
+// and writes them through these names and does not import service/tension.
+type (
+	SpokeSpec          = tension.SpokeSpec
+	CalibrationColumn  = tension.Column
+	CalibrationPoint   = tension.Point
+	ToolFacts          = tension.Tool
+	TensionModel       = tension.Model
+	TensionWarning     = tension.Warning
+	ConversionRequest  = tension.ConversionRequest
+	ConversionResponse = tension.ConversionResponse
+	AuditRequest       = tension.AuditRequest
+	AuditReading       = tension.AuditReading
+	AuditResult        = tension.AuditResult
+	ToolParams         = tension.ToolParams
+	SpokeVerdict       = tension.SpokeVerdict
+)
+
+// CalibrationRef names the calibration a computation uses: a stored
+// version by id (its stored model is used as it is) or an inline one,
+// fitted for the request. Exactly one must be set.
+type CalibrationRef struct {
+	ID     *uuid.UUID
+	Inline *InlineCalibration
+}
+
+// InlineCalibration is a calibration sent with a computation.
+type InlineCalibration struct {
+	Source  string
+	Columns []CalibrationColumn
+	Tool    ToolFacts
+}
+
+// modelFor resolves ref to a fitted model; cal is the stored version used,
+// nil for an inline calibration.
+func (s *Service) modelFor(ctx context.Context, p Principal, ref CalibrationRef) (m *TensionModel, cal *Calibration, err error) {
+	switch {
+	case ref.ID != nil && ref.Inline != nil:
+		return nil, nil, Invalid("/calibration", "give calibration_id or an inline calibration, not both")
+	case ref.ID != nil:
+		c, err := s.store.GetCalibration(ctx, p.OrgID, *ref.ID)
+		if err != nil {
+			return nil, nil, fmt.Errorf("calibration %s: %w", *ref.ID, err)
+		}
+		if c.Model == nil || c.Model.Version != tension.ModelVersion {
+			return nil, nil, fmt.Errorf("calibration %s: stored model layout is not version %d", c.ID, tension.ModelVersion)
+		}
+		return c.Model, &c, nil
+	case ref.Inline != nil:
+		m, err := tension.Fit(tension.Calibration{Source: ref.Inline.Source, Columns: ref.Inline.Columns}, ref.Inline.Tool)
+		if err != nil {
+			return nil, nil, inlinePointers(err)
+		}
+		return m, nil, nil
+	}
+	return nil, nil, Invalid("/calibration_id", "give calibration_id or an inline calibration")
+}
+
+// inlinePointers places Fit's pointers inside the request body: the tool
+// facts under /calibration/tool, everything else under /calibration.
+func inlinePointers(err error) error {
+	if multi, ok := err.(interface{ Unwrap() []error }); ok {
+		var out []error
+		for _, e := range multi.Unwrap() {
+			out = append(out, inlinePointers(e))
+		}
+		return errors.Join(out...)
+	}
+	var fe *tension.FieldError
+	if !errors.As(err, &fe) {
+		return err
+	}
+	c := *fe
+	if c.Pointer == "/unit_mm" || c.Pointer == "/measured_span_mm" {
+		c.Pointer = "/calibration/tool" + c.Pointer
+	} else {
+		c.Pointer = "/calibration" + c.Pointer
+	}
+	return &c
+}
+
+// ConversionOutput is a conversion's answer and the stored calibration
+// version it used (nil for an inline calibration).
+type ConversionOutput struct {
+	Calibration *Calibration
+	ConversionResponse
+}
+
+// ConvertTension converts readings to tensions, or a target tension to the
+// reading to aim for. It stores nothing.
+func (s *Service) ConvertTension(ctx context.Context, p Principal, ref CalibrationRef, req ConversionRequest) (ConversionOutput, error) {
+	m, cal, err := s.modelFor(ctx, p, ref)
+	if err != nil {
+		return ConversionOutput{}, err
+	}
+	req.Calibration, req.CalibrationID = nil, ""
+	out, err := m.ConvertRequest(req)
+	if err != nil {
+		return ConversionOutput{}, err
+	}
+	return ConversionOutput{Calibration: cal, ConversionResponse: out}, nil
+}
+
+// AuditOutput is an audit's answer and the stored calibration version it
+// used (nil for an inline calibration).
+type AuditOutput struct {
+	Calibration *Calibration
+	AuditResult
+}
+
+// AuditTension judges one wheel's readings. It stores nothing.
+func (s *Service) AuditTension(ctx context.Context, p Principal, ref CalibrationRef, req AuditRequest) (AuditOutput, error) {
+	m, cal, err := s.modelFor(ctx, p, ref)
+	if err != nil {
+		return AuditOutput{}, err
+	}
+	req.Calibration, req.CalibrationID = nil, ""
+	out, err := m.Audit(req)
+	if err != nil {
+		return AuditOutput{}, err
+	}
+	return AuditOutput{Calibration: cal, AuditResult: out}, nil
+}
+
+// CalibrationChart draws a stored calibration version as SVG, with the
+// requested section's curve and 95 % band when spec is not nil. Field
+// errors name the query parameters.
+func (s *Service) CalibrationChart(ctx context.Context, p Principal, id uuid.UUID, spec *SpokeSpec) ([]byte, error) {
+	m, _, err := s.modelFor(ctx, p, CalibrationRef{ID: &id})
+	if err != nil {
+		return nil, err
+	}
+	svg, err := m.Chart(spec)
+	return svg, queryPointers(err)
+}
+
+// queryPointers turns the chart's "/spoke/NAME" pointers into "query:NAME".
+func queryPointers(err error) error {
+	if err == nil {
+		return nil
+	}
+	if multi, ok := err.(interface{ Unwrap() []error }); ok {
+		var out []error
+		for _, e := range multi.Unwrap() {
+			out = append(out, queryPointers(e))
+		}
+		return errors.Join(out...)
+	}
+	var fe *tension.FieldError
+	if !errors.As(err, &fe) {
+		return err
+	}
+	c := *fe
+	name := strings.TrimPrefix(strings.TrimPrefix(c.Pointer, "/spoke"), "/")
+	if name == "" {
+		name = "diameter_mm"
+	}
+	c.Pointer = "query:" + name
+	return &c
+}

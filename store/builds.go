@@ -1,0 +1,114 @@
+package store
+
+import (
+	"context"
+	"encoding/json"
+	"errors"
+
+	"github.com/google/uuid"
+	"github.com/jackc/pgx/v5"
+
+	"wheelbench/service"
+)
+
+const buildColumns = `org_id, id, location_id, external_ref, status, spec, snapshot, notes, version, created_at, updated_at`
+
+func scanBuild(row pgx.CollectableRow) (service.Build, error) {
+	var b service.Build
+	var status string
+	var snap []byte
+	err := row.Scan(&b.OrgID, &b.ID, &b.LocationID, &b.ExternalRef, &status, &b.Spec, &snap, &b.Notes, &b.Version, &b.CreatedAt, &b.UpdatedAt)
+	if err != nil {
+		return b, err
+	}
+	b.Status = service.BuildStatus(status)
+	return b, json.Unmarshal(snap, &b.Snapshot)
+}
+
+// CreateBuild inserts b and its build.created change.
+func (s *Store) CreateBuild(ctx context.Context, b service.Build) (err error) {
+	defer wrap(&err, "create build")
+	snap, err := json.Marshal(b.Snapshot)
+	if err != nil {
+		return err
+	}
+	const q = `INSERT INTO builds (` + buildColumns + `) VALUES ($1, $2, $3, $4, $5, $6, $7, $8, $9, $10, $11)`
+	return s.inTx(ctx, func(tx pgx.Tx) error {
+		if _, err := tx.Exec(ctx, q, b.OrgID, b.ID, b.LocationID, b.ExternalRef, string(b.Status), []byte(b.Spec), snap, b.Notes, b.Version, b.CreatedAt, b.UpdatedAt); err != nil {
+			return err
+		}
+		return recordChange(ctx, tx, b.OrgID, service.Change{Type: "build.created", ResourceID: b.ID, LocationID: &b.LocationID, Data: buildSummary(b)})
+	})
+}
+
+// buildSummary is a build's change-feed payload: everything but the
+// (large) snapshot, which the resource itself serves.
+func buildSummary(b service.Build) map[string]any {
+	return map[string]any{"id": b.ID, "location_id": b.LocationID, "external_ref": b.ExternalRef, "status": b.Status,
+		"verdict": b.Snapshot.Compatibility.Verdict, "notes": b.Notes, "updated_at": b.UpdatedAt}
+}
+
+// GetBuild reads one of orgID's builds.
+func (s *Store) GetBuild(ctx context.Context, orgID, id uuid.UUID) (b service.Build, err error) {
+	defer wrap(&err, "get build")
+	rows, _ := s.db(ctx).Query(ctx, `SELECT `+buildColumns+` FROM builds WHERE org_id = $1 AND id = $2`, orgID, id)
+	return pgx.CollectExactlyOneRow(rows, scanBuild)
+}
+
+// ListBuilds lists orgID's builds by id with filters.
+func (s *Store) ListBuilds(ctx context.Context, orgID uuid.UUID, f service.BuildFilter, p service.Page) (bs []service.Build, err error) {
+	defer wrap(&err, "list builds")
+	const q = `SELECT ` + buildColumns + ` FROM builds
+	  WHERE org_id = $1 AND id > $2
+	    AND ($3 = '' OR status = $3)
+	    AND ($4::uuid IS NULL OR location_id = $4)
+	    AND ($5::text IS NULL OR external_ref = $5)
+	    AND ($6::timestamptz IS NULL OR updated_at > $6)
+	  ORDER BY id LIMIT $7`
+	rows, _ := s.db(ctx).Query(ctx, q, orgID, p.After, string(f.Status), f.LocationID, f.ExternalRef, f.UpdatedAfter, p.Limit)
+	return pgx.CollectRows(rows, scanBuild)
+}
+
+// UpdateBuild applies p when the build is still at version.
+func (s *Store) UpdateBuild(ctx context.Context, orgID, id uuid.UUID, version int64, from service.BuildStatus, p service.BuildPatch) (b service.Build, err error) {
+	defer wrap(&err, "update build")
+	var status *string
+	if p.Status != nil {
+		st := string(*p.Status)
+		status = &st
+	}
+	const q = `UPDATE builds SET status = COALESCE($4, status), notes = COALESCE($5, notes),
+	    version = version + 1, updated_at = now()
+	  WHERE org_id = $1 AND id = $2 AND version = $3 RETURNING ` + buildColumns
+	err = s.inTx(ctx, func(tx pgx.Tx) error {
+		rows, _ := tx.Query(ctx, q, orgID, id, version, status, p.Notes)
+		b, err = pgx.CollectExactlyOneRow(rows, scanBuild)
+		if errors.Is(err, pgx.ErrNoRows) {
+			return service.ErrPreconditionFailed
+		}
+		if err != nil {
+			return err
+		}
+		typ := "build.updated"
+		if p.Status != nil && *p.Status != from {
+			typ = "build.status_changed"
+		}
+		return recordChange(ctx, tx, orgID, service.Change{Type: typ, ResourceID: id, LocationID: &b.LocationID, Data: buildSummary(b)})
+	})
+	return b, err
+}
+
+// setBuildStatus moves a build inside tx (quotes use it).
+func setBuildStatus(ctx context.Context, tx pgx.Tx, orgID, id uuid.UUID, from, to service.BuildStatus) (service.Build, error) {
+	const q = `UPDATE builds SET status = $4, version = version + 1, updated_at = now()
+	  WHERE org_id = $1 AND id = $2 AND status = $3 RETURNING ` + buildColumns
+	rows, _ := tx.Query(ctx, q, orgID, id, string(from), string(to))
+	b, err := pgx.CollectExactlyOneRow(rows, scanBuild)
+	if errors.Is(err, pgx.ErrNoRows) {
+		return b, service.ErrConflict
+	}
+	if err != nil {
+		return b, err
+	}
+	return b, recordChange(ctx, tx, orgID, service.Change{Type: "build.status_changed", ResourceID: id, LocationID: &b.LocationID, Data: buildSummary(b)})
+}
