@@ -395,3 +395,61 @@ func TestLeaseExpiryRedelivers(t *testing.T) {
 	}
 	rv.checkSignatures()
 }
+
+// TestShopEventsFollowTheFeed: a build quoted and ordered, with an endpoint
+// subscribed to build.* and quote.accepted. What arrives is exactly the
+// feed's rows of those types — (type, resource) for (type, resource), read
+// from the changes table — and nothing of the other types written on the
+// way (locations, parts, stock, price list, quote.created).
+func TestShopEventsFollowTheFeed(t *testing.T) {
+	e, svcs := replicas(t, 1)
+	patterns := []string{"build.*", "quote.accepted"}
+	rv := newReceiver(t, func(int64) int { return http.StatusOK })
+	e.createEndpoint(rv, patterns...)
+	w := e.keyA[service.RoleWrite]
+	s := e.newShop(1)
+	var b, q struct{ ID string }
+	e.want(e.do("POST", "/v1/builds", w, map[string]any{"spec": s.spec(), "location_id": s.loc}), 201).json(t, &b)
+	e.want(e.do("POST", "/v1/quotes", w, map[string]any{"build_id": b.ID}), 201).json(t, &q)
+	e.want(e.do("POST", "/v1/quotes/"+q.ID+"/accept", w, nil), 200)
+
+	rows, err := e.st.Pool().Query(context.Background(), `SELECT type, resource_id::text FROM changes WHERE org_id = $1`, e.orgA)
+	if err != nil {
+		t.Fatal(err)
+	}
+	want, all := map[string]int{}, map[string]bool{}
+	for rows.Next() {
+		var typ, id string
+		if err := rows.Scan(&typ, &id); err != nil {
+			t.Fatal(err)
+		}
+		all[typ] = true
+		if service.MatchesEvent(patterns, typ) {
+			want[typ+" "+id]++
+		}
+	}
+	if rows.Err() != nil {
+		t.Fatal(rows.Err())
+	}
+	if !all["build.created"] || !all["quote.accepted"] || !all["quote.created"] || !all["part.created"] {
+		t.Fatalf("the feed lacks the types this test is about: %v", all)
+	}
+	d := dispatcher(t, svcs[0], service.DispatcherConfig{Sender: newLoopbackSender(t, rv), Retry: fastRetry})
+	if _, err := d.RunOnce(context.Background()); err != nil {
+		t.Fatal(err)
+	}
+	got := map[string]int{}
+	for _, r := range rv.snapshot() {
+		got[r.event.Type+" "+r.event.ResourceID.String()]++
+	}
+	if len(got) != len(want) {
+		t.Errorf("received %v, want %v", got, want)
+	}
+	for k, n := range want {
+		if got[k] != n {
+			t.Errorf("%s: received %d, the feed has %d", k, got[k], n)
+		}
+	}
+	rv.checkSignatures()
+	t.Logf("feed types %v; delivered %v", all, got)
+}
