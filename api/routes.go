@@ -70,6 +70,13 @@ func (s *Server) routeTable(g prometheus.Gatherer) []Route {
 
 		{Method: http.MethodGet, Path: "/v1/changes", Role: service.RoleRead, handler: s.listChanges},
 
+		{Method: http.MethodGet, Path: "/v1/webhook-endpoints", Role: service.RoleAdmin, handler: s.listWebhookEndpoints},
+		// Not idempotent by key: a replay would have to keep the signing secret.
+		{Method: http.MethodPost, Path: "/v1/webhook-endpoints", Role: service.RoleAdmin, handler: s.createWebhookEndpoint},
+		{Method: http.MethodGet, Path: "/v1/webhook-endpoints/{id}", Role: service.RoleAdmin, handler: s.getWebhookEndpoint},
+		{Method: http.MethodPatch, Path: "/v1/webhook-endpoints/{id}", Role: service.RoleAdmin, handler: s.updateWebhookEndpoint},
+		{Method: http.MethodDelete, Path: "/v1/webhook-endpoints/{id}", Role: service.RoleAdmin, handler: s.deleteWebhookEndpoint},
+
 		{Method: http.MethodPost, Path: "/v1/spoke-lengths", Role: service.RoleRead, OwnBodyCheck: true, handler: s.computeSpokeLengths},
 		{Method: http.MethodPost, Path: "/v1/spoke-lengths/batch", Role: service.RoleRead, BodyLimit: BatchBodyLimit, OwnBodyCheck: true, handler: s.computeSpokeLengthsBatch},
 		{Method: http.MethodPost, Path: "/v1/compatibility-checks", Role: service.RoleRead, handler: s.checkCompatibility},

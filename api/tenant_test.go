@@ -41,6 +41,9 @@ var fixtures = map[string]fixture{
 	"POST /v1/tools/{id}/calibrations":    toolFixture(map[string]any{"columns": []any{map[string]any{"spoke": map[string]any{"diameter_mm": 2.0, "material": "stainless_steel"}, "points": []any{map[string]any{"tension_n": 800, "reading": 60}, map[string]any{"tension_n": 1200, "reading": 75}}}}}),
 	"GET /v1/calibrations/{id}":           calibrationFixture,
 	"GET /v1/calibrations/{id}/chart.svg": calibrationFixture,
+	"GET /v1/webhook-endpoints/{id}":      webhookEndpointFixture(nil),
+	"PATCH /v1/webhook-endpoints/{id}":    webhookEndpointFixture(map[string]any{"description": "renamed"}),
+	"DELETE /v1/webhook-endpoints/{id}":   webhookEndpointFixture(nil),
 }
 
 func partFixture(body any) fixture {
@@ -64,6 +67,19 @@ func quoteFixture() fixture {
 		var q struct{ ID uuid.UUID }
 		e.want(e.do("POST", "/v1/quotes", e.keyA[service.RoleWrite], map[string]any{"build_id": id}), 201).json(e.t, &q)
 		return q.ID, nil
+	}
+}
+
+// webhookEndpointFixture makes an endpoint of organisation A; its URL is
+// never sent to (no dispatcher runs in the tenant test).
+func webhookEndpointFixture(body any) fixture {
+	return func(e *env) (uuid.UUID, any) {
+		ep, err := e.svc.CreateWebhookEndpoint(e.t.Context(), service.Principal{OrgID: e.orgA, Role: service.RoleAdmin},
+			service.WebhookEndpointInput{URL: "https://receiver.example/hooks", Events: []string{"*"}})
+		if err != nil {
+			e.t.Fatal(err)
+		}
+		return ep.ID, body
 	}
 }
 

@@ -95,4 +95,32 @@ type Store interface {
 	GetCalibration(ctx context.Context, orgID, id uuid.UUID) (Calibration, error)
 	// ListCalibrations lists a tool's versions by version number.
 	ListCalibrations(ctx context.Context, orgID, toolID uuid.UUID, p Page) ([]Calibration, error)
+
+	// Webhooks. Writing a change also writes one outbox row per active
+	// endpoint of the organisation subscribed to its type (see MatchesEvent),
+	// in the change's transaction.
+	CreateWebhookEndpoint(ctx context.Context, e WebhookEndpoint) error
+	// GetWebhookEndpoint and ListWebhookEndpoints leave Secret empty.
+	GetWebhookEndpoint(ctx context.Context, orgID, id uuid.UUID) (WebhookEndpoint, error)
+	ListWebhookEndpoints(ctx context.Context, orgID uuid.UUID, p Page) ([]WebhookEndpoint, error)
+	// UpdateWebhookEndpoint applies p when the stored version equals version
+	// (ErrPreconditionFailed otherwise); switching Active off cancels the
+	// endpoint's pending deliveries, switching it on clears DisabledReason.
+	UpdateWebhookEndpoint(ctx context.Context, orgID, id uuid.UUID, version int64, p WebhookEndpointPatch) (WebhookEndpoint, error)
+	// DeleteWebhookEndpoint removes the endpoint and its deliveries.
+	DeleteWebhookEndpoint(ctx context.Context, orgID, id uuid.UUID) error
+	// ClaimWebhookDeliveries takes up to n pending deliveries that are due,
+	// of active endpoints, in any organisation, skipping rows another
+	// transaction holds (FOR UPDATE SKIP LOCKED): each gets its attempt
+	// counted and its next attempt moved lease ahead, and the claim commits
+	// before it returns.
+	ClaimWebhookDeliveries(ctx context.Context, n int, lease time.Duration) ([]WebhookDelivery, error)
+	// FinishWebhookDelivery records an attempt's outcome if the delivery is
+	// still pending at r.Delivery.Attempt (nobody re-claimed it); recorded
+	// reports whether it was. OutcomeGone also switches the endpoint off and
+	// cancels its other pending deliveries.
+	FinishWebhookDelivery(ctx context.Context, r WebhookResult) (recorded bool, err error)
+	// ReleaseWebhookDeliveries hands claimed, unsent deliveries back: due
+	// now, the attempt uncounted.
+	ReleaseWebhookDeliveries(ctx context.Context, ds []WebhookDelivery) error
 }

@@ -4,6 +4,7 @@ import (
 	"context"
 	"encoding/json"
 	"strconv"
+	"time"
 
 	"github.com/google/uuid"
 	"github.com/jackc/pgx/v5"
@@ -11,15 +12,21 @@ import (
 	"wheelbench/service"
 )
 
-// recordChange appends c to the feed on q — the transaction of the change.
+// recordChange appends c to the feed on q — the transaction of the change —
+// and, in the same transaction, to the webhook outbox of every endpoint
+// subscribed to it.
 func recordChange(ctx context.Context, q querier, orgID uuid.UUID, c service.Change) error {
 	data, err := json.Marshal(c.Data)
 	if err != nil {
 		return err
 	}
-	const ins = `INSERT INTO changes (org_id, type, resource_id, location_id, data) VALUES ($1, $2, $3, $4, $5)`
-	_, err = q.Exec(ctx, ins, orgID, c.Type, c.ResourceID, c.LocationID, data)
-	return err
+	const ins = `INSERT INTO changes (org_id, type, resource_id, location_id, data) VALUES ($1, $2, $3, $4, $5)
+	  RETURNING occurred_at`
+	var at time.Time
+	if err := q.QueryRow(ctx, ins, orgID, c.Type, c.ResourceID, c.LocationID, data).Scan(&at); err != nil {
+		return err
+	}
+	return enqueueWebhooks(ctx, q, orgID, c, data, at)
 }
 
 // ListChanges implements service.Store. Rows are served in (txid, seq)

@@ -66,7 +66,10 @@ func migrateDB(ctx context.Context, db *sql.DB) error {
 	if err != nil {
 		return err
 	}
-	p, err := goose.NewProvider(goose.DialectPostgres, db, Migrations(), goose.WithSessionLocker(locker))
+	// Out-of-order migrations are allowed: each one stands alone, and work
+	// merged from a parallel branch may carry a lower number than one a
+	// database has already applied.
+	p, err := goose.NewProvider(goose.DialectPostgres, db, Migrations(), goose.WithSessionLocker(locker), goose.WithAllowOutofOrder(true))
 	if err != nil {
 		return fmt.Errorf("migrations: %w", err)
 	}

@@ -15,6 +15,7 @@ import (
 
 	"wheelbench/api"
 	"wheelbench/service"
+	"wheelbench/service/webhook"
 	"wheelbench/store"
 )
 
@@ -38,7 +39,9 @@ func openApp(ctx context.Context, cfg config, getenv func(string) string, log *s
 		return nil, err
 	}
 	st := store.New(pool)
-	return &app{pool: pool, st: st, svc: service.New(st, log)}, nil
+	svc := service.New(st, log)
+	svc.ConfigureWebhooks(service.WebhookSettings{AllowPrivate: cfg.WebhookAllowPrivate})
+	return &app{pool: pool, st: st, svc: svc}, nil
 }
 
 func (a *app) close() { a.pool.Close() }
@@ -68,26 +71,52 @@ func serve(ctx context.Context, cfg config, getenv func(string) string, log *slo
 		MaxHeaderBytes:    64 << 10,
 		BaseContext:       func(net.Listener) context.Context { return context.WithoutCancel(ctx) },
 	}
+	dispatcher, err := a.svc.NewDispatcher(service.DispatcherConfig{
+		Sender:   api.NewWebhookSender(cfg.WebhookAllowPrivate, 0),
+		Poll:     cfg.WebhookPoll,
+		Retry:    webhook.RetryConfig{Window: cfg.WebhookRetryWindow},
+		Observer: api.NewWebhookMetrics(reg),
+	})
+	if err != nil {
+		return err
+	}
 	ln, err := net.Listen("tcp", cfg.Addr)
 	if err != nil {
 		return err
 	}
+	// The webhook dispatcher runs beside the HTTP server; on shutdown it
+	// stops claiming, finishes the sends under way and releases the rest.
+	dctx, stopDispatch := context.WithCancel(context.WithoutCancel(ctx))
+	defer stopDispatch()
+	dispatched := make(chan struct{})
+	go func() { defer close(dispatched); dispatcher.Run(dctx) }()
+	log.Info("webhook dispatcher started", slog.Duration("poll", cfg.WebhookPoll),
+		slog.Duration("retry_window", cfg.WebhookRetryWindow), slog.Bool("allow_private", cfg.WebhookAllowPrivate))
 	log.Info("serving", slog.String("addr", ln.Addr().String()))
 	errc := make(chan error, 1)
 	go func() { errc <- hs.Serve(ln) }()
 	select {
 	case err := <-errc:
+		stopDispatch()
+		<-dispatched
 		return err
 	case <-ctx.Done():
 	}
-	log.Info("shutting down: draining in-flight requests", slog.Duration("timeout", cfg.ShutdownTimeout))
+	log.Info("shutting down: draining in-flight requests and webhook sends", slog.Duration("timeout", cfg.ShutdownTimeout))
 	sctx, cancel := context.WithTimeout(context.Background(), cfg.ShutdownTimeout)
 	defer cancel()
+	stopDispatch()
 	if err := hs.Shutdown(sctx); err != nil {
 		return fmt.Errorf("shutdown: %w", err)
 	}
 	if err := <-errc; err != nil && !errors.Is(err, http.ErrServerClosed) {
 		return err
+	}
+	// The pool closes when serve returns: wait for the dispatcher first.
+	select {
+	case <-dispatched:
+	case <-sctx.Done():
+		return errors.New("shutdown: webhook sends did not finish in time; their leases will expire and another replica will retry them")
 	}
 	log.Info("stopped")
 	return nil

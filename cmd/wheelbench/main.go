@@ -18,6 +18,7 @@ import (
 	"log/slog"
 	"os"
 	"os/signal"
+	"strconv"
 	"strings"
 	"syscall"
 	"time"
@@ -55,10 +56,16 @@ type config struct {
 	LogLevel        slog.Level
 	ShutdownTimeout time.Duration
 	RequestTimeout  time.Duration
+	// Webhooks: private destinations allowed, the retry window, the
+	// dispatcher's poll interval.
+	WebhookAllowPrivate bool
+	WebhookRetryWindow  time.Duration
+	WebhookPoll         time.Duration
 }
 
 func loadConfig(getenv func(string) string) (config, error) {
-	c := config{Addr: ":8080", ShutdownTimeout: 20 * time.Second, RequestTimeout: 30 * time.Second}
+	c := config{Addr: ":8080", ShutdownTimeout: 20 * time.Second, RequestTimeout: 30 * time.Second,
+		WebhookRetryWindow: 72 * time.Hour, WebhookPoll: time.Second}
 	if v := getenv("WHEELBENCH_ADDR"); v != "" {
 		c.Addr = v
 	}
@@ -71,7 +78,8 @@ func loadConfig(getenv func(string) string) (config, error) {
 	for _, d := range []struct {
 		env string
 		dst *time.Duration
-	}{{"WHEELBENCH_SHUTDOWN_TIMEOUT", &c.ShutdownTimeout}, {"WHEELBENCH_REQUEST_TIMEOUT", &c.RequestTimeout}} {
+	}{{"WHEELBENCH_SHUTDOWN_TIMEOUT", &c.ShutdownTimeout}, {"WHEELBENCH_REQUEST_TIMEOUT", &c.RequestTimeout},
+		{"WHEELBENCH_WEBHOOK_RETRY_WINDOW", &c.WebhookRetryWindow}, {"WHEELBENCH_WEBHOOK_POLL", &c.WebhookPoll}} {
 		if v := getenv(d.env); v != "" {
 			t, err := time.ParseDuration(v)
 			if err != nil || t <= 0 {
@@ -79,6 +87,13 @@ func loadConfig(getenv func(string) string) (config, error) {
 			}
 			*d.dst = t
 		}
+	}
+	if v := getenv("WHEELBENCH_WEBHOOK_ALLOW_PRIVATE"); v != "" {
+		b, err := strconv.ParseBool(v)
+		if err != nil {
+			return c, fmt.Errorf("WHEELBENCH_WEBHOOK_ALLOW_PRIVATE: want true or false, got %q", v)
+		}
+		c.WebhookAllowPrivate = b
 	}
 	return c, nil
 }
