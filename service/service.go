@@ -18,6 +18,8 @@ type Service struct {
 	log   *slog.Logger
 	now   func() time.Time
 	keys  *keyCache
+	// webhooks are the process's webhook settings (ConfigureWebhooks).
+	webhooks WebhookSettings
 }
 
 // New returns a Service over st.

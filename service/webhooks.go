@@ -9,7 +9,6 @@ import (
 	"regexp"
 	"slices"
 	"strings"
-	"sync"
 	"time"
 	"unicode/utf8"
 
@@ -70,21 +69,11 @@ type WebhookSettings struct {
 	AllowPrivate bool
 }
 
-// webhookSettings holds each Service's WebhookSettings beside it, so that
-// configuring webhooks needs no field in Service; an unconfigured Service
-// refuses private destinations.
-var webhookSettings sync.Map // *Service → WebhookSettings
+// ConfigureWebhooks sets s's webhook settings; call it while wiring, before
+// serving. An unconfigured Service refuses private destinations.
+func (s *Service) ConfigureWebhooks(w WebhookSettings) { s.webhooks = w }
 
-// ConfigureWebhooks sets s's webhook settings.
-func (s *Service) ConfigureWebhooks(w WebhookSettings) {
-	webhookSettings.Store(s, w)
-}
-
-func (s *Service) webhookSettings() WebhookSettings {
-	w, _ := webhookSettings.Load(s)
-	ws, _ := w.(WebhookSettings)
-	return ws
-}
+func (s *Service) webhookSettings() WebhookSettings { return s.webhooks }
 
 // Event pattern limits.
 const (

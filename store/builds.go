@@ -33,12 +33,16 @@ func (s *Store) CreateBuild(ctx context.Context, b service.Build) (err error) {
 		return err
 	}
 	const q = `INSERT INTO builds (` + buildColumns + `) VALUES ($1, $2, $3, $4, $5, $6, $7, $8, $9, $10, $11)`
-	return s.inTx(ctx, func(tx pgx.Tx) error {
-		if _, err := tx.Exec(ctx, q, b.OrgID, b.ID, b.LocationID, b.ExternalRef, string(b.Status), []byte(b.Spec), snap, b.Notes, b.Version, b.CreatedAt, b.UpdatedAt); err != nil {
-			return err
-		}
-		return recordChange(ctx, tx, b.OrgID, service.Change{Type: "build.created", ResourceID: b.ID, LocationID: &b.LocationID, Data: buildSummary(b)})
-	})
+	change, args, err := changeStatement(b.OrgID, service.Change{Type: "build.created", ResourceID: b.ID, LocationID: &b.LocationID, Data: buildSummary(b)})
+	if err != nil {
+		return err
+	}
+	// One round trip: the two statements go as one batch, which PostgreSQL
+	// runs as one (implicit, or the request's) transaction.
+	var batch pgx.Batch
+	batch.Queue(q, b.OrgID, b.ID, b.LocationID, b.ExternalRef, string(b.Status), []byte(b.Spec), snap, b.Notes, b.Version, b.CreatedAt, b.UpdatedAt)
+	batch.Queue(change, args...)
+	return s.sendBatch(ctx, &batch)
 }
 
 // buildSummary is a build's change-feed payload: everything but the

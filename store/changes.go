@@ -16,17 +16,41 @@ import (
 // and, in the same transaction, to the webhook outbox of every endpoint
 // subscribed to it.
 func recordChange(ctx context.Context, q querier, orgID uuid.UUID, c service.Change) error {
-	data, err := json.Marshal(c.Data)
+	sql, args, err := changeStatement(orgID, c)
 	if err != nil {
 		return err
 	}
-	const ins = `INSERT INTO changes (org_id, type, resource_id, location_id, data) VALUES ($1, $2, $3, $4, $5)
-	  RETURNING occurred_at`
-	var at time.Time
-	if err := q.QueryRow(ctx, ins, orgID, c.Type, c.ResourceID, c.LocationID, data).Scan(&at); err != nil {
-		return err
+	_, err = q.Exec(ctx, sql, args...)
+	return err
+}
+
+// changeStatement is the one statement that appends change c to the feed
+// and, for every active endpoint of the organisation subscribed to its
+// type, queues a webhook delivery (the outbox), so that both commit with
+// the change. Run it with recordChange, or queue it in a pgx.Batch.
+func changeStatement(orgID uuid.UUID, c service.Change) (string, []any, error) {
+	data, err := json.Marshal(c.Data)
+	if err != nil {
+		return "", nil, err
 	}
-	return enqueueWebhooks(ctx, q, orgID, c, data, at)
+	// Microseconds: what timestamptz keeps, so feed and webhook agree.
+	at := time.Now().UTC().Truncate(time.Microsecond)
+	id, err := service.NewWebhookEventID()
+	if err != nil {
+		return "", nil, err
+	}
+	body, err := json.Marshal(service.WebhookEvent{ID: id, Type: c.Type, OccurredAt: at,
+		ResourceID: c.ResourceID, LocationID: c.LocationID, Data: data})
+	if err != nil {
+		return "", nil, err
+	}
+	const q = `WITH change AS (
+	    INSERT INTO changes (org_id, type, resource_id, location_id, data, occurred_at) VALUES ($1, $2, $3, $4, $5, $6))
+	  INSERT INTO webhook_deliveries (org_id, endpoint_id, event_id, type, body)
+	  SELECT org_id, id, $7, $2, $8 FROM webhook_endpoints
+	  WHERE org_id = $1 AND active
+	    AND ($2 = ANY (events) OR split_part($2, '.', 1) || '.*' = ANY (events) OR '*' = ANY (events))`
+	return q, []any{orgID, c.Type, c.ResourceID, c.LocationID, data, at, id, body}, nil
 }
 
 // ListChanges implements service.Store. Rows are served in (txid, seq)

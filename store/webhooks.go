@@ -2,7 +2,6 @@ package store
 
 import (
 	"context"
-	"encoding/json"
 	"errors"
 	"time"
 
@@ -11,27 +10,6 @@ import (
 
 	"wheelbench/service"
 )
-
-// enqueueWebhooks writes the outbox rows of change c on q, the change's
-// transaction: one per active endpoint of orgID subscribed to c.Type, all
-// with the same event id and body. The match is service.MatchesEvent's rule.
-func enqueueWebhooks(ctx context.Context, q querier, orgID uuid.UUID, c service.Change, data []byte, at time.Time) error {
-	id, err := service.NewWebhookEventID()
-	if err != nil {
-		return err
-	}
-	body, err := json.Marshal(service.WebhookEvent{ID: id, Type: c.Type, OccurredAt: at.UTC(),
-		ResourceID: c.ResourceID, LocationID: c.LocationID, Data: data})
-	if err != nil {
-		return err
-	}
-	const ins = `INSERT INTO webhook_deliveries (org_id, endpoint_id, event_id, type, body)
-	  SELECT org_id, id, $2, $3, $4 FROM webhook_endpoints
-	  WHERE org_id = $1 AND active
-	    AND ($3 = ANY (events) OR split_part($3, '.', 1) || '.*' = ANY (events) OR '*' = ANY (events))`
-	_, err = q.Exec(ctx, ins, orgID, id, c.Type, body)
-	return err
-}
 
 const endpointColumns = `org_id, id, url, events, description, active, disabled_reason, version, created_at, updated_at`
 
