@@ -311,3 +311,61 @@ func TestBuildTargetsAndAudits(t *testing.T) {
 	e.want(e.do("POST", path, w, map[string]any{"calibration_id": uuid.New(), "readings": readings}), 422)
 	e.want(e.do("POST", path, w, map[string]any{"calibration_id": cal.ID, "readings": []any{}}), 400)
 }
+
+// TestBuildBadBodies: POST /v1/builds judges a body itself first and falls
+// back to the spec only for a body it refuses; the answers must be the
+// spec's 400s with the pointer of the bad field.
+func TestBuildBadBodies(t *testing.T) {
+	e := newEnv(t)
+	w := e.keyA[service.RoleWrite]
+	s := e.newShop(1)
+	with := func(edit func(spec map[string]any)) map[string]any {
+		spec := s.spec()
+		edit(spec)
+		return map[string]any{"spec": spec, "location_id": s.loc}
+	}
+	cases := []struct {
+		name    string
+		body    any
+		status  int
+		pointer string
+	}{
+		{"garbage", "{not json", 400, ""},
+		{"wrong type", with(func(sp map[string]any) { sp["spoke_count"] = "many" }), 400, "/spec/spoke_count"},
+		{"unknown field", with(func(sp map[string]any) { sp["colour"] = "red" }), 400, "/spec/colour"},
+		{"nested wrong type", with(func(sp map[string]any) {
+			delete(sp, "hub_id")
+			sp["hub"] = map[string]any{"holes": 32, "left": map[string]any{"pcd_mm": "wide", "center_to_flange_mm": 35}, "right": map[string]any{"pcd_mm": 45, "center_to_flange_mm": 35}}
+		}), 400, "/spec/hub/left/pcd_mm"},
+		{"bad uuid", with(func(sp map[string]any) { sp["rim_id"] = "not-an-id" }), 400, "/spec/rim_id"},
+		{"missing location", map[string]any{"spec": s.spec()}, 400, ""},
+		{"negative crosses", with(func(sp map[string]any) { sp["crosses"] = map[string]any{"left": -1, "right": 3} }), 400, "/spec/crosses/left"},
+		{"NaN-producing ERD", with(func(sp map[string]any) {
+			delete(sp, "rim_id")
+			sp["rim"] = map[string]any{"holes": 32, "erd_mm": 30, "bsd_mm": 622, "inner_width_mm": 19, "hole_diameter_mm": 4.2}
+		}), 0, "/spec/rim/erd_mm"},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			r := e.do("POST", "/v1/builds", w, c.body)
+			if c.status != 0 && r.StatusCode != c.status || r.StatusCode < 400 || r.StatusCode >= 500 {
+				t.Fatalf("status %d, want %d\n%s", r.StatusCode, c.status, r.body)
+			}
+			p := r.problem(t)
+			if c.pointer != "" {
+				found := false
+				for _, f := range p.Errors {
+					found = found || f.Pointer == c.pointer
+				}
+				if !found {
+					t.Errorf("errors %+v do not name %s", p.Errors, c.pointer)
+				}
+			}
+		})
+	}
+	var list struct{ Items []any }
+	e.want(e.do("GET", "/v1/builds", w, nil), 200).json(t, &list)
+	if len(list.Items) != 0 {
+		t.Errorf("bad bodies stored %d builds", len(list.Items))
+	}
+}

@@ -123,18 +123,22 @@ func (r response) problem(t testing.TB) api.Problem {
 func (e *env) do(method, path, key string, body any, hdr ...string) response {
 	e.t.Helper()
 	var rd io.Reader
+	var sent []byte
 	switch b := body.(type) {
 	case nil:
 	case string:
-		rd = strings.NewReader(b)
+		sent = []byte(b)
 	case []byte:
-		rd = bytes.NewReader(b)
+		sent = b
 	default:
 		j, err := json.Marshal(b)
 		if err != nil {
 			e.t.Fatal(err)
 		}
-		rd = bytes.NewReader(j)
+		sent = j
+	}
+	if body != nil {
+		rd = bytes.NewReader(sent)
 	}
 	req, err := http.NewRequest(method, e.http.URL+path, rd)
 	if err != nil {
@@ -159,6 +163,9 @@ func (e *env) do(method, path, key string, body any, hdr ...string) response {
 		e.t.Fatal(err)
 	}
 	e.validate(req, res, b)
+	if res.StatusCode < 300 && !strings.HasPrefix(path, "/v1/spoke-lengths") {
+		e.validateAccepted(req, sent)
+	}
 	return response{Response: res, body: b}
 }
 
@@ -189,6 +196,28 @@ func (e *env) validate(req *http.Request, res *http.Response, body []byte) {
 	in.SetBodyBytes(body)
 	if err := openapi3filter.ValidateResponse(context.Background(), in); err != nil {
 		e.t.Fatalf("%s %s → %d does not match the spec: %v\nbody: %.2000s", req.Method, req.URL.Path, res.StatusCode, err, body)
+	}
+}
+
+// validateAccepted checks that a request the service accepted is one the
+// spec accepts too: routes that judge bodies themselves (SpecCheckOnError)
+// must never let through what the spec refuses. (The spoke-length routes
+// have their own agreement test.)
+func (e *env) validateAccepted(req *http.Request, body []byte) {
+	e.t.Helper()
+	if !strings.HasPrefix(req.URL.Path, "/v1/") {
+		return
+	}
+	check := req.Clone(context.Background())
+	check.Body = io.NopCloser(bytes.NewReader(body))
+	route, params, err := e.router.FindRoute(check)
+	if err != nil {
+		e.t.Fatalf("%s %s was accepted but is not in the spec", req.Method, req.URL.Path)
+	}
+	in := &openapi3filter.RequestValidationInput{Request: check, PathParams: params, Route: route,
+		Options: &openapi3filter.Options{AuthenticationFunc: openapi3filter.NoopAuthenticationFunc}}
+	if err := openapi3filter.ValidateRequest(context.Background(), in); err != nil {
+		e.t.Fatalf("%s %s was accepted, but the spec refuses the request: %v\nbody: %.1000s", req.Method, req.URL.Path, err, body)
 	}
 }
 

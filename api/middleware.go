@@ -1,7 +1,9 @@
 package api
 
 import (
+	"bytes"
 	"errors"
+	"io"
 	"log/slog"
 	"net/http"
 	"strings"
@@ -83,7 +85,7 @@ func (s *Server) validateRequest(next echo.HandlerFunc) echo.HandlerFunc {
 			return echo.ErrNotFound
 		}
 		o := opts
-		if r, ok := s.routeFor(req.Method, c.Path()); ok && r.OwnBodyCheck {
+		if r, ok := s.routeFor(req.Method, c.Path()); ok && (r.OwnBodyCheck || r.SpecCheckOnError) {
 			o = &noBody
 		}
 		in := &openapi3filter.RequestValidationInput{Request: req, PathParams: params, Route: route, Options: o}
@@ -137,5 +139,44 @@ func (s *Server) logRequests(next echo.HandlerFunc) echo.HandlerFunc {
 			slog.String("request_id", c.Response().Header().Get(echo.HeaderXRequestID)),
 		)
 		return nil
+	}
+}
+
+// specCheckOnError serves routes whose valid bodies are too costly to run
+// through the generic spec validator on every request (a build's spec is a
+// deep document): the handler's strict decoding and the service's
+// validation judge the body first, and only when they refuse it is the
+// body checked against the spec, so that a malformed request gets the same
+// 400 with the same pointers as on every other route. It runs innermost,
+// inside the Idempotency-Key wrapper, so a replayed answer is the final one.
+func (s *Server) specCheckOnError(next echo.HandlerFunc) echo.HandlerFunc {
+	opts := &openapi3filter.Options{MultiError: true, AuthenticationFunc: openapi3filter.NoopAuthenticationFunc}
+	return func(c echo.Context) error {
+		req := c.Request()
+		body, err := io.ReadAll(req.Body)
+		if err != nil {
+			return err
+		}
+		req.Body = io.NopCloser(bytes.NewReader(body))
+		herr := next(c)
+		if herr == nil {
+			return nil
+		}
+		if p, _ := toProblem(herr); p.Status != http.StatusBadRequest && p.Status != http.StatusUnprocessableEntity {
+			return herr
+		}
+		check := req.Clone(req.Context())
+		check.Body = io.NopCloser(bytes.NewReader(body))
+		route, params, err := s.router.FindRoute(check)
+		if err != nil {
+			return herr
+		}
+		in := &openapi3filter.RequestValidationInput{Request: check, PathParams: params, Route: route, Options: opts}
+		if err := openapi3filter.ValidateRequest(check.Context(), in); err != nil {
+			if verr := fromSpecError(err); verr != nil {
+				return verr
+			}
+		}
+		return herr
 	}
 }

@@ -44,7 +44,7 @@ func (s *Server) routeTable(g prometheus.Gatherer) []Route {
 		{Method: http.MethodPut, Path: "/v1/parts/{id}/stock", Role: service.RoleWrite, handler: s.putPartStock},
 
 		{Method: http.MethodGet, Path: "/v1/builds", Role: service.RoleRead, handler: s.listBuilds},
-		{Method: http.MethodPost, Path: "/v1/builds", Role: service.RoleWrite, Idempotent: true, handler: s.createBuild},
+		{Method: http.MethodPost, Path: "/v1/builds", Role: service.RoleWrite, Idempotent: true, SpecCheckOnError: true, handler: s.createBuild},
 		{Method: http.MethodGet, Path: "/v1/builds/{id}", Role: service.RoleRead, handler: s.getBuild},
 		{Method: http.MethodPatch, Path: "/v1/builds/{id}", Role: service.RoleWrite, handler: s.updateBuild},
 		{Method: http.MethodGet, Path: "/v1/builds/{id}/tension-audits", Role: service.RoleRead, handler: s.listBuildAudits},

@@ -65,7 +65,10 @@ type Route struct {
 	// checks the body against the spec itself (for a body too large to be
 	// validated generically within the route's time budget).
 	OwnBodyCheck bool
-	handler      echo.HandlerFunc
+	// SpecCheckOnError skips the spec's body validation for bodies the
+	// handler accepts and applies it to those it refuses (specCheckOnError).
+	SpecCheckOnError bool
+	handler          echo.HandlerFunc
 }
 
 func init() {
@@ -127,6 +130,9 @@ func New(cfg Config) (*Server, error) {
 		var mw []echo.MiddlewareFunc
 		if r.Idempotent {
 			mw = append(mw, s.idempotent)
+		}
+		if r.SpecCheckOnError {
+			mw = append(mw, s.specCheckOnError)
 		}
 		e.Add(r.Method, echoPath(r.Path), r.handler, mw...)
 		s.byKey[r.Method+" "+echoPath(r.Path)] = r

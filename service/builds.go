@@ -311,7 +311,7 @@ func (s *Service) CreateBuild(ctx context.Context, p Principal, in BuildInput) (
 	if utf8.RuneCountInString(in.ExternalRef) > 200 {
 		return Build{}, Invalid("/external_ref", "external_ref must be at most 200 characters")
 	}
-	_, cal, err := s.store.LocationWithCalibration(ctx, p.OrgID, in.LocationID)
+	_, cal, err := s.locationWithCalibration(ctx, p.OrgID, in.LocationID)
 	if errors.Is(err, ErrNotFound) {
 		return Build{}, Unprocessable("/location_id", "no such location in this organisation")
 	} else if err != nil {

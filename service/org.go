@@ -142,6 +142,7 @@ func (s *Service) ListLocations(ctx context.Context, p Principal, page Page) ([]
 
 // UpdateLocation applies patch if ifMatch is the location's current ETag.
 func (s *Service) UpdateLocation(ctx context.Context, p Principal, id uuid.UUID, ifMatch string, patch LocationPatch) (Location, error) {
+	defer s.locations.forgetOrganisation(p.OrgID)
 	if err := validateLocationFields(patch.Name, patch.Code, patch.Timezone, patch.Address, patch.TaxRatePPM); err != nil {
 		return Location{}, err
 	}

@@ -18,6 +18,8 @@ type Service struct {
 	log   *slog.Logger
 	now   func() time.Time
 	keys  *keyCache
+	// locations caches build creation's location reads (loccache.go).
+	locations *locationCache
 	// webhooks are the process's webhook settings (ConfigureWebhooks).
 	webhooks WebhookSettings
 }
@@ -27,5 +29,5 @@ func New(st Store, log *slog.Logger) *Service {
 	if log == nil {
 		log = slog.New(slog.DiscardHandler)
 	}
-	return &Service{store: st, log: log, now: time.Now, keys: newKeyCache(5 * time.Second)}
+	return &Service{store: st, log: log, now: time.Now, keys: newKeyCache(5 * time.Second), locations: newLocationCache(2 * time.Second)}
 }

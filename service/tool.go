@@ -100,6 +100,7 @@ func (s *Service) checkLocation(ctx context.Context, p Principal, id uuid.UUID) 
 
 // CreateTool adds a tensiometer to one of the caller's locations.
 func (s *Service) CreateTool(ctx context.Context, p Principal, in ToolInput) (Tool, error) {
+	defer s.locations.forgetOrganisation(p.OrgID)
 	if err := validateToolFields(&in.Label, &in.Serial, &in.Notes, in.UnitMM, in.MeasuredSpanMM); err != nil {
 		return Tool{}, err
 	}
@@ -139,6 +140,7 @@ func (s *Service) ListTools(ctx context.Context, p Principal, page Page) ([]Tool
 // UpdateTool applies patch if ifMatch is the tool's current ETag. Published
 // calibrations keep the tool facts they were fitted with.
 func (s *Service) UpdateTool(ctx context.Context, p Principal, id uuid.UUID, ifMatch string, patch ToolPatch) (Tool, error) {
+	defer s.locations.forgetOrganisation(p.OrgID)
 	if err := validateToolFields(patch.Label, patch.Serial, patch.Notes, patch.UnitMM, patch.MeasuredSpanMM); err != nil {
 		return Tool{}, err
 	}
@@ -194,6 +196,7 @@ type CalibrationInput struct {
 // columns convert themselves); one that fails validation is refused with
 // pointers under /columns.
 func (s *Service) PublishCalibration(ctx context.Context, p Principal, toolID uuid.UUID, in CalibrationInput) (Calibration, error) {
+	defer s.locations.forgetOrganisation(p.OrgID)
 	if utf8.RuneCountInString(in.Notes) > 2000 {
 		return Calibration{}, Invalid("/notes", "notes must be at most 2000 characters")
 	}

@@ -1,14 +1,16 @@
 #!/usr/bin/env bash
-# Measures build creation through HTTP (auth, validation, geometry, fit, one
-# transaction with its change-feed row) against pgbench's single-row INSERT
-# rate on the same PostgreSQL, one after the other in one run. Loopback only.
+# Measures build creation through HTTP (auth, spec validation, geometry,
+# fit, one transaction with its change-feed and outbox rows) against
+# pgbench's single-row INSERT rate on the same PostgreSQL, alternating the
+# two ROUNDS times in one run so both see the same machine. Loopback only.
 # Needs wrk and pgbench (Debian: apt-get install -y wrk postgresql-client).
 set -euo pipefail
 cd "$(dirname "$0")/../.."
 DB=${DB:-wbload}
 ADDR=${ADDR:-127.0.0.1:18099}
 CONNS=${CONNS:-8}
-DUR=${DUR:-10s}
+DUR=${DUR:-10}
+ROUNDS=${ROUNDS:-2}
 psql -h 127.0.0.1 -U postgres -qc "DROP DATABASE IF EXISTS $DB" -c "CREATE DATABASE $DB"
 export WHEELBENCH_DATABASE_URL="host=127.0.0.1 user=postgres dbname=$DB"
 go build -o /tmp/wheelbench-load ./cmd/wheelbench
@@ -19,10 +21,19 @@ trap 'kill $PID 2>/dev/null || true' EXIT
 for _ in $(seq 1 50); do curl -fs "http://$ADDR/readyz" >/dev/null && break; sleep 0.2; done
 LOCATION=$(curl -fs -H "Authorization: Bearer $KEY" -H 'Content-Type: application/json' \
   -d '{"name":"Load bench"}' "http://$ADDR/v1/locations" | sed -n 's/.*"id":"\([^"]*\)".*/\1/p')
-echo "== wrk: POST /v1/builds, $CONNS connections, $DUR"
-KEY=$KEY LOCATION=$LOCATION wrk -t2 -c"$CONNS" -d"$DUR" -s testdata/load/build_create.lua "http://$ADDR"
-kill $PID; wait $PID 2>/dev/null || true
-echo "== pgbench: single-row INSERT, $CONNS clients, $DUR"
 psql -h 127.0.0.1 -U postgres -d "$DB" -qc "CREATE TABLE load_rows (id bigserial PRIMARY KEY, payload text NOT NULL, created_at timestamptz NOT NULL DEFAULT now())"
-pgbench -h 127.0.0.1 -U postgres -n -f testdata/load/insert.sql -c "$CONNS" -j 2 -T "${DUR%s}" "$DB" | grep -E "tps|latency|transactions"
+cpu() { awk '{print $14 + $15}' "/proc/$PID/stat"; }   # server user+system CPU, clock ticks
+TICK=$(getconf CLK_TCK)
+for r in $(seq 1 "$ROUNDS"); do
+  before=$(cpu)
+  out=$(KEY=$KEY LOCATION=$LOCATION wrk -t2 -c"$CONNS" -d"${DUR}s" -s testdata/load/build_create.lua "http://$ADDR")
+  after=$(cpu)
+  rps=$(echo "$out" | sed -n 's/^Requests\/sec: *//p')
+  reqs=$(echo "$out" | sed -n 's/^ *\([0-9]*\) requests in.*/\1/p')
+  non2xx=$(echo "$out" | sed -n 's/.*Non-2xx or 3xx responses: *//p')
+  tps=$(pgbench -h 127.0.0.1 -U postgres -n -f testdata/load/insert.sql -c "$CONNS" -j 2 -T "$DUR" "$DB" 2>/dev/null | sed -n 's/^tps = \([0-9.]*\).*/\1/p')
+  awk -v r="$r" -v rps="$rps" -v tps="$tps" -v reqs="$reqs" -v ticks=$((after - before)) -v tick="$TICK" -v bad="${non2xx:-0}" 'BEGIN {
+    printf "round %s: builds %.0f/s (%d requests, %s non-2xx, server CPU %.0f us/build), pgbench INSERT %.0f tps, ratio %.2f\n",
+      r, rps, reqs, bad, ticks / tick / reqs * 1e6, tps, rps / tps }'
+done
 psql -h 127.0.0.1 -U postgres -d "$DB" -Atc "SELECT 'builds stored: ' || count(*) FROM builds"
