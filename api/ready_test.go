@@ -83,10 +83,8 @@ func (p *cutProxy) setDown(down bool) {
 	}
 }
 
-// TestReadyzFollowsTheDatabase: /readyz is 503 while the database cannot be
-// reached and 200 again once it can, with no restart; /healthz stays 200;
-// /v1 requests fail fast with 503 problem+json meanwhile.
-func TestReadyzFollowsTheDatabase(t *testing.T) {
+// newProxiedEnv is newEnv with the database reached through a cutProxy.
+func newProxiedEnv(t *testing.T) (*env, *cutProxy) {
 	url := storetest.URL(t)
 	cfg, err := pgxpool.ParseConfig(url)
 	if err != nil {
@@ -101,6 +99,14 @@ func TestReadyzFollowsTheDatabase(t *testing.T) {
 	}
 	t.Cleanup(pool.Close)
 	e := newEnvPool(t, pool)
+	return e, proxy
+}
+
+// TestReadyzFollowsTheDatabase: /readyz is 503 while the database cannot be
+// reached and 200 again once it can, with no restart; /healthz stays 200;
+// /v1 requests fail fast with 503 problem+json meanwhile.
+func TestReadyzFollowsTheDatabase(t *testing.T) {
+	e, proxy := newProxiedEnv(t)
 	e.want(e.do("GET", "/readyz", "", nil), 200)
 
 	proxy.setDown(true)
@@ -136,20 +142,7 @@ func TestReadyzFollowsTheDatabase(t *testing.T) {
 // with 503 problem+json and /readyz is 503; afterwards the same process
 // serves again, and every build that was acknowledged (201) is stored.
 func TestDatabaseOutageUnderLoad(t *testing.T) {
-	url := storetest.URL(t)
-	cfg, err := pgxpool.ParseConfig(url)
-	if err != nil {
-		t.Fatal(err)
-	}
-	proxy := newCutProxy(t, net.JoinHostPort(cfg.ConnConfig.Host, strconv.Itoa(int(cfg.ConnConfig.Port))))
-	host, port, _ := net.SplitHostPort(proxy.addr)
-	proxied := strings.NewReplacer("host="+cfg.ConnConfig.Host, "host="+host, "port="+strconv.Itoa(int(cfg.ConnConfig.Port)), "port="+port).Replace(url)
-	pool, err := pgxpool.New(context.Background(), proxied)
-	if err != nil {
-		t.Fatal(err)
-	}
-	t.Cleanup(pool.Close)
-	e := newEnvPool(t, pool)
+	e, proxy := newProxiedEnv(t)
 	s := e.newShop(1000)
 	w := e.keyA[service.RoleWrite]
 
