@@ -92,6 +92,9 @@ func serve(ctx context.Context, cfg config, getenv func(string) string, log *slo
 	go func() { defer close(dispatched); dispatcher.Run(dctx) }()
 	log.Info("webhook dispatcher started", slog.Duration("poll", cfg.WebhookPoll),
 		slog.Duration("retry_window", cfg.WebhookRetryWindow), slog.Bool("allow_private", cfg.WebhookAllowPrivate))
+	retention := service.DefaultRetention
+	retention.Changes = cfg.ChangeRetention
+	go service.RunJanitor(dctx, a.st, retention, log)
 	log.Info("serving", slog.String("addr", ln.Addr().String()))
 	errc := make(chan error, 1)
 	go func() { errc <- hs.Serve(ln) }()

@@ -22,6 +22,8 @@ import (
 	"strings"
 	"syscall"
 	"time"
+
+	"wheelbench/service"
 )
 
 func main() {
@@ -61,11 +63,13 @@ type config struct {
 	WebhookAllowPrivate bool
 	WebhookRetryWindow  time.Duration
 	WebhookPoll         time.Duration
+	// ChangeRetention is how long the change feed keeps rows.
+	ChangeRetention time.Duration
 }
 
 func loadConfig(getenv func(string) string) (config, error) {
 	c := config{Addr: ":8080", ShutdownTimeout: 20 * time.Second, RequestTimeout: 30 * time.Second,
-		WebhookRetryWindow: 72 * time.Hour, WebhookPoll: time.Second}
+		WebhookRetryWindow: 72 * time.Hour, WebhookPoll: time.Second, ChangeRetention: service.DefaultRetention.Changes}
 	if v := getenv("WHEELBENCH_ADDR"); v != "" {
 		c.Addr = v
 	}
@@ -79,7 +83,8 @@ func loadConfig(getenv func(string) string) (config, error) {
 		env string
 		dst *time.Duration
 	}{{"WHEELBENCH_SHUTDOWN_TIMEOUT", &c.ShutdownTimeout}, {"WHEELBENCH_REQUEST_TIMEOUT", &c.RequestTimeout},
-		{"WHEELBENCH_WEBHOOK_RETRY_WINDOW", &c.WebhookRetryWindow}, {"WHEELBENCH_WEBHOOK_POLL", &c.WebhookPoll}} {
+		{"WHEELBENCH_WEBHOOK_RETRY_WINDOW", &c.WebhookRetryWindow}, {"WHEELBENCH_WEBHOOK_POLL", &c.WebhookPoll},
+		{"WHEELBENCH_CHANGE_RETENTION", &c.ChangeRetention}} {
 		if v := getenv(d.env); v != "" {
 			t, err := time.ParseDuration(v)
 			if err != nil || t <= 0 {
