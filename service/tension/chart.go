@@ -9,8 +9,8 @@ import (
 
 // Chart geometry, in SVG user units.
 const (
-	chartW, chartH                  = 820.0, 540.0
-	marginL, marginR, marginT, marg = 70.0, 200.0, 40.0, 55.0
+	chartW, chartH                  = 1000.0, 540.0
+	marginL, marginR, marginT, marg = 70.0, 330.0, 40.0, 55.0
 	chartSamples                    = 60
 )
 
