@@ -1,9 +1,6 @@
 package tension
 
-import (
-	"fmt"
-	"math"
-)
+import "math"
 
 // Result thresholds (DESIGN.md §4.2).
 const (
@@ -140,19 +137,16 @@ func (m *Model) prepare(spec SpokeSpec, at string) (prepared, error) {
 	switch {
 	case rr > ratioUnreliable:
 		p.unrel = true
-		p.secWarns = append(p.secWarns, Warning{WarnUnreliable, "warning", fmt.Sprintf(
-			"the %s spoke's bending stiffness is %.2f× that of the nearest calibrated column (beyond %.1f×): results are unreliable", desc, p.ratio, ratioUnreliable)})
+		p.secWarns = append(p.secWarns, Warning{WarnUnreliable, "warning", msgUnreliableRatio(desc, p.ratio)})
 		fallthrough
 	case rr > ratioCalibrate:
-		p.secWarns = append(p.secWarns, Warning{WarnStiffnessCalibrate, "warning", fmt.Sprintf(
-			"stiffness ratio %.2f is beyond %.1f: calibrate this size with known tensions (about 600, 1000 and 1400 N, three readings each)", p.ratio, ratioCalibrate)})
+		p.secWarns = append(p.secWarns, Warning{WarnStiffnessCalibrate, "warning", msgCalibrate(p.ratio)})
 		fallthrough
 	case rr > ratioVerify:
-		p.secWarns = append(p.secWarns, Warning{WarnStiffnessVerify, "warning", fmt.Sprintf(
-			"stiffness ratio %.2f is beyond %.1f: verify the tool on this spoke with one known tension", p.ratio, ratioVerify)})
+		p.secWarns = append(p.secWarns, Warning{WarnStiffnessVerify, "warning", msgVerify(p.ratio)})
 	}
 	if !sameE {
-		p.secCauts = append(p.secCauts, fmt.Sprintf("No calibrated column has this spoke's modulus (%g GPa); the result rests on the tool model and the material's stiffness.", sec.E))
+		p.secCauts = append(p.secCauts, msgOtherModulus(sec.E))
 	}
 	return p, nil
 }
@@ -346,22 +340,19 @@ func (p *prepared) modelStatus(t float64) string {
 func (p *prepared) finish(reliable *bool, warns *[]Warning, cauts *[]string, t float64, iv [2]float64, resolution float64, status string) {
 	rng := p.m.TensionRangeN
 	if t < rng[0] || t > rng[1] {
-		*warns = append(*warns, Warning{WarnOutsideTensionRange, "warning", fmt.Sprintf(
-			"%.0f N lies outside the calibrated tensions %.0f–%.0f N", t, rng[0], rng[1])})
+		*warns = append(*warns, Warning{WarnOutsideTensionRange, "warning", msgOutsideRange(t, rng)})
 	}
 	if t > 0 && resolution/t > resolutionMax {
-		*warns = append(*warns, Warning{WarnCoarseResolution, "warning", fmt.Sprintf(
-			"one dial unit is %.0f N here (%.1f %% of the tension, beyond %.0f %%): read carefully and average several readings", resolution, 100*resolution/t, 100*resolutionMax)})
+		*warns = append(*warns, Warning{WarnCoarseResolution, "warning", msgCoarse(resolution, t)})
 	}
 	hw := (iv[1] - iv[0]) / 2
 	wide := !(t > 0) || hw/t > halfWidthMax
 	if wide {
-		*warns = append(*warns, Warning{WarnUnreliable, "warning", fmt.Sprintf(
-			"the 95 %% interval is ±%.0f N (%.1f %% of the tension, beyond %.0f %%)", hw, 100*hw/math.Max(t, 1e-9), 100*halfWidthMax)})
+		*warns = append(*warns, Warning{WarnUnreliable, "warning", msgWide(hw, 100*hw/math.Max(t, 1e-9))})
 	}
 	if wide || p.unrel {
 		*reliable = false
-		*cauts = append(*cauts, fmt.Sprintf("Do not use %.0f N as a bare number: the true tension may lie anywhere in %.0f–%.0f N. Calibrate this spoke size against known tensions before building to it.", t, iv[0], iv[1]))
+		*cauts = append(*cauts, msgBareNumber(t, iv))
 	}
 	if status == StatusExtrapolated {
 		*cauts = append(*cauts, "This conversion is extrapolated beyond the calibration (another section, material or tension range); check it against a known tension before relying on it, since a wrongly tensioned wheel can fail.")
