@@ -136,6 +136,12 @@ func (m *Model) prepare(spec SpokeSpec, at string) (prepared, error) {
 	}
 	switch {
 	case rr > ratioUnreliable:
+		p.secWarns = make([]Warning, 0, 3)
+	case rr > ratioCalibrate:
+		p.secWarns = make([]Warning, 0, 2)
+	}
+	switch {
+	case rr > ratioUnreliable:
 		p.unrel = true
 		p.secWarns = append(p.secWarns, Warning{WarnUnreliable, "warning", msgUnreliableRatio(desc, p.ratio)})
 		fallthrough
@@ -149,6 +155,15 @@ func (m *Model) prepare(spec SpokeSpec, at string) (prepared, error) {
 		p.secCauts = append(p.secCauts, msgOtherModulus(sec.E))
 	}
 	return p, nil
+}
+
+// paramBuf returns a slice of n values backed by buf when buf is long
+// enough (the per-reading gradient then stays off the heap).
+func paramBuf(buf []float64, n int) []float64 {
+	if n <= len(buf) {
+		return buf[:n]
+	}
+	return make([]float64, n)
 }
 
 // halfWidthUnits is t₀.₉₇₅·√(s² + gᵀCov g + m²), in dial units.
@@ -236,8 +251,12 @@ func (p *prepared) convert(reading float64, at string) (Result, error) {
 	if !finite(reading) || math.Abs(reading) > maxReading {
 		return Result{}, badField(at, "reading must be a finite dial reading")
 	}
-	res := Result{Reading: reading, Reliable: true, StiffnessRatio: p.ratio, DeltaDiameterMM: p.deltaD,
-		Warnings: append([]Warning{}, p.secWarns...), Cautions: append([]string{}, p.secCauts...)}
+	res := Result{Reading: reading, Reliable: true, StiffnessRatio: p.ratio, DeltaDiameterMM: p.deltaD}
+	// Warnings and cautions gather on the stack; the result gets one
+	// allocation for each (an empty, non-nil slice when there are none).
+	var wbuf [8]Warning
+	var cbuf [4]string
+	warns, cauts := append(wbuf[:0], p.secWarns...), append(cbuf[:0], p.secCauts...)
 	if p.col >= 0 && m.Columns[p.col].Curve != nil {
 		cv := m.Columns[p.col].Curve.cubic()
 		if reading >= cv.X[0] && reading <= cv.X[len(cv.X)-1] {
@@ -254,11 +273,12 @@ func (p *prepared) convert(reading float64, at string) (Result, error) {
 			res.IntervalN = [2]float64{math.Max(lo, 0), hi}
 			res.ResolutionNPerUnit = slope
 			if resOnly {
-				res.Warnings = append(res.Warnings, Warning{WarnResolutionOnlyInterval, "info",
+				warns = append(warns, Warning{WarnResolutionOnlyInterval, "info",
 					"without a fitted tool model the interval covers only the dial's half-unit reading resolution, not the table's own error"})
 			}
 			res.SensitivityNPer001MM = p.sensitivity(reading)
-			p.finish(&res.Reliable, &res.Warnings, &res.Cautions, t, res.IntervalN, res.ResolutionNPerUnit, res.Status)
+			warns, cauts = p.finish(&res.Reliable, warns, cauts, t, res.IntervalN, res.ResolutionNPerUnit, res.Status)
+			res.Warnings, res.Cautions = append([]Warning{}, warns...), append([]string{}, cauts...)
 			res.TensionKgf, res.TensionLbf = KgfFromN(t), LbfFromN(t)
 			return res, nil
 		}
@@ -275,7 +295,8 @@ func (p *prepared) convert(reading float64, at string) (Result, error) {
 	if !ok {
 		return Result{}, impossible(at, "reading %g is beyond what the tool model can produce for a %s spoke; check the reading and the section", reading, p.sec.describe())
 	}
-	g := make([]float64, len(ph.Params))
+	var gbuf [16]float64
+	g := paramBuf(gbuf[:], len(ph.Params))
 	drdT := gradient(ph.Params, p.es, unit, st, g)
 	if !(drdT > 0) {
 		return Result{}, impossible(at, "the tool model's curve is not monotone at reading %g for this section; no tension is given", reading)
@@ -293,7 +314,8 @@ func (p *prepared) convert(reading float64, at string) (Result, error) {
 	}
 	res.Status = p.modelStatus(t)
 	res.SensitivityNPer001MM = p.sensitivityFrom(reading, st.teff)
-	p.finish(&res.Reliable, &res.Warnings, &res.Cautions, t, res.IntervalN, res.ResolutionNPerUnit, res.Status)
+	warns, cauts = p.finish(&res.Reliable, warns, cauts, t, res.IntervalN, res.ResolutionNPerUnit, res.Status)
+	res.Warnings, res.Cautions = append([]Warning{}, warns...), append([]string{}, cauts...)
 	res.TensionKgf, res.TensionLbf = KgfFromN(t), LbfFromN(t)
 	return res, nil
 }
@@ -337,31 +359,32 @@ func (p *prepared) modelStatus(t float64) string {
 }
 
 // finish adds the result-level warnings and cautions.
-func (p *prepared) finish(reliable *bool, warns *[]Warning, cauts *[]string, t float64, iv [2]float64, resolution float64, status string) {
+func (p *prepared) finish(reliable *bool, warns []Warning, cauts []string, t float64, iv [2]float64, resolution float64, status string) ([]Warning, []string) {
 	rng := p.m.TensionRangeN
 	if t < rng[0] || t > rng[1] {
-		*warns = append(*warns, Warning{WarnOutsideTensionRange, "warning", msgOutsideRange(t, rng)})
+		warns = append(warns, Warning{WarnOutsideTensionRange, "warning", msgOutsideRange(t, rng)})
 	}
 	if t > 0 && resolution/t > resolutionMax {
-		*warns = append(*warns, Warning{WarnCoarseResolution, "warning", msgCoarse(resolution, t)})
+		warns = append(warns, Warning{WarnCoarseResolution, "warning", msgCoarse(resolution, t)})
 	}
 	hw := (iv[1] - iv[0]) / 2
 	wide := !(t > 0) || hw/t > halfWidthMax
 	if wide {
-		*warns = append(*warns, Warning{WarnUnreliable, "warning", msgWide(hw, 100*hw/math.Max(t, 1e-9))})
+		warns = append(warns, Warning{WarnUnreliable, "warning", msgWide(hw, 100*hw/math.Max(t, 1e-9))})
 	}
 	if wide || p.unrel {
 		*reliable = false
-		*cauts = append(*cauts, msgBareNumber(t, iv))
+		cauts = append(cauts, msgBareNumber(t, iv))
 	}
 	if status == StatusExtrapolated {
-		*cauts = append(*cauts, "This conversion is extrapolated beyond the calibration (another section, material or tension range); check it against a known tension before relying on it, since a wrongly tensioned wheel can fail.")
+		cauts = append(cauts, "This conversion is extrapolated beyond the calibration (another section, material or tension range); check it against a known tension before relying on it, since a wrongly tensioned wheel can fail.")
 	}
 	for _, w := range p.m.Warnings {
 		if w.Code == WarnSpanMismatch || w.Code == WarnModelMarginal {
-			*warns = append(*warns, w)
+			warns = append(warns, w)
 		}
 	}
+	return warns, cauts
 }
 
 // Target returns the reading at which the section reaches tensionN.
@@ -380,8 +403,10 @@ func (p *prepared) target(tn float64, at string) (Target, error) {
 		return Target{}, badField(at, "the target tension must be positive and at most %d N", maxTensionN)
 	}
 	tg := Target{TensionN: tn, TensionKgf: KgfFromN(tn), TensionLbf: LbfFromN(tn), Reliable: true,
-		StiffnessRatio: p.ratio, DeltaDiameterMM: p.deltaD,
-		Warnings: append([]Warning{}, p.secWarns...), Cautions: append([]string{}, p.secCauts...)}
+		StiffnessRatio: p.ratio, DeltaDiameterMM: p.deltaD}
+	var wbuf [8]Warning
+	var cbuf [4]string
+	warns, cauts := append(wbuf[:0], p.secWarns...), append(cbuf[:0], p.secCauts...)
 	if p.col >= 0 && m.Columns[p.col].Curve != nil {
 		cv := m.Columns[p.col].Curve.cubic()
 		if r, ok := cv.invert(tn); ok {
@@ -397,11 +422,12 @@ func (p *prepared) target(tn float64, at string) (Target, error) {
 			lo, _ := cv.at(r - w)
 			hi, _ := cv.at(r + w)
 			if resOnly {
-				tg.Warnings = append(tg.Warnings, Warning{WarnResolutionOnlyInterval, "info",
+				warns = append(warns, Warning{WarnResolutionOnlyInterval, "info",
 					"without a fitted tool model the interval covers only the dial's half-unit reading resolution"})
 			}
 			tg.SensitivityNPer001MM = p.sensitivity(r)
-			p.finish(&tg.Reliable, &tg.Warnings, &tg.Cautions, tn, [2]float64{math.Max(lo, 0), hi}, slope, tg.Status)
+			warns, cauts = p.finish(&tg.Reliable, warns, cauts, tn, [2]float64{math.Max(lo, 0), hi}, slope, tg.Status)
+			tg.Warnings, tg.Cautions = append([]Warning{}, warns...), append([]string{}, cauts...)
 			return tg, nil
 		}
 	}
@@ -417,7 +443,8 @@ func (p *prepared) target(tn float64, at string) (Target, error) {
 	if !ok {
 		return Target{}, impossible(at, "the tool model cannot reach %g N on a %s spoke", tn, p.sec.describe())
 	}
-	g := make([]float64, len(ph.Params))
+	var gbuf [16]float64
+	g := paramBuf(gbuf[:], len(ph.Params))
 	drdT := gradient(ph.Params, p.es, unit, st, g)
 	if !(drdT > 0) {
 		return Target{}, impossible(at, "the tool model's curve is not monotone at %g N for this section", tn)
@@ -433,6 +460,7 @@ func (p *prepared) target(tn float64, at string) (Target, error) {
 	tg.SensitivityNPer001MM = p.sensitivity(r)
 	// The tension interval this reading band implies, for the reliability test.
 	lo, hi := tn-w/drdT, tn+w/drdT
-	p.finish(&tg.Reliable, &tg.Warnings, &tg.Cautions, tn, [2]float64{math.Max(lo, 0), hi}, tg.ResolutionNPerUnit, tg.Status)
+	warns, cauts = p.finish(&tg.Reliable, warns, cauts, tn, [2]float64{math.Max(lo, 0), hi}, tg.ResolutionNPerUnit, tg.Status)
+	tg.Warnings, tg.Cautions = append([]Warning{}, warns...), append([]string{}, cauts...)
 	return tg, nil
 }
