@@ -1,6 +1,9 @@
 package tension
 
-import "strconv"
+import (
+	"math"
+	"strconv"
+)
 
 // The warning and caution texts of a conversion, built with strconv from
 // constant parts: fmt boxed every figure and cost about as much as the
@@ -10,6 +13,19 @@ import "strconv"
 
 // fixed appends v as %.<prec>f does.
 func fixed(b []byte, v float64, prec int) []byte { return strconv.AppendFloat(b, v, 'f', prec, 64) }
+
+// fixed0 appends v as %.0f does, by the integer path for |v| < 2⁵³: %.0f
+// is the nearest integer, ties to even, and a negative value that rounds
+// to zero prints as "-0".
+func fixed0(b []byte, v float64) []byte {
+	if r := math.RoundToEven(v); math.Abs(r) < 1<<53 { // false for NaN and ±Inf
+		if r == 0 && math.Signbit(v) {
+			return append(b, "-0"...)
+		}
+		return strconv.AppendInt(b, int64(r), 10)
+	}
+	return fixed(b, v, 0)
+}
 
 // short appends v as %g does.
 func short(b []byte, v float64) []byte { return strconv.AppendFloat(b, v, 'g', -1, 64) }
@@ -72,11 +88,11 @@ func msgOtherModulus(e float64) string {
 // msgOutsideRange: "%.0f N lies outside the calibrated tensions %.0f–%.0f N".
 func msgOutsideRange(t float64, rng [2]float64) string {
 	var buf [96]byte
-	b := fixed(buf[:0], t, 0)
+	b := fixed0(buf[:0], t)
 	b = append(b, " N lies outside the calibrated tensions "...)
-	b = fixed(b, rng[0], 0)
+	b = fixed0(b, rng[0])
 	b = append(b, "–"...)
-	b = fixed(b, rng[1], 0)
+	b = fixed0(b, rng[1])
 	b = append(b, " N"...)
 	return string(b)
 }
@@ -86,7 +102,7 @@ func msgOutsideRange(t float64, rng [2]float64) string {
 func msgCoarse(resolution, t float64) string {
 	var buf [160]byte
 	b := append(buf[:0], "one dial unit is "...)
-	b = fixed(b, resolution, 0)
+	b = fixed0(b, resolution)
 	b = append(b, " N here ("...)
 	b = fixed(b, 100*resolution/t, 1)
 	b = append(b, tailCoarse...)
@@ -98,7 +114,7 @@ func msgCoarse(resolution, t float64) string {
 func msgWide(hw, share float64) string {
 	var buf [96]byte
 	b := append(buf[:0], "the 95 % interval is ±"...)
-	b = fixed(b, hw, 0)
+	b = fixed0(b, hw)
 	b = append(b, " N ("...)
 	b = fixed(b, share, 1)
 	b = append(b, tailWide...)
@@ -111,11 +127,11 @@ func msgWide(hw, share float64) string {
 func msgBareNumber(t float64, iv [2]float64) string {
 	var buf [192]byte
 	b := append(buf[:0], "Do not use "...)
-	b = fixed(b, t, 0)
+	b = fixed0(b, t)
 	b = append(b, " N as a bare number: the true tension may lie anywhere in "...)
-	b = fixed(b, iv[0], 0)
+	b = fixed0(b, iv[0])
 	b = append(b, "–"...)
-	b = fixed(b, iv[1], 0)
+	b = fixed0(b, iv[1])
 	b = append(b, " N. Calibrate this spoke size against known tensions before building to it."...)
 	return string(b)
 }

@@ -13,7 +13,9 @@ import (
 // negative zero, NaN, infinities, huge and tiny values — and random ones.
 func TestMessagesMatchFmt(t *testing.T) {
 	vals := []float64{0, math.Copysign(0, -1), 0.5, 1.5, 2.5, -0.5, 0.005, 0.015, 1.005, 1.125, 1.3, 1.6, 2.2,
-		2.2049999999999996, 999.5, 1000.4999999999999, -3, 1e-300, 5e-324, 1e21, 1.7976931348623157e308,
+		2.2049999999999996, 999.5, 1000.4999999999999, -3, -0.3, -0.5, -0.5000000000000001, -1.5, 3.5, 4.5,
+		1 << 53, 1<<53 - 1, 1<<53 + 2, -(1 << 53), 9007199254740991.5, 4503599627370495.5, -4503599627370496.5,
+		1e-300, 5e-324, 1e21, 1.7976931348623157e308,
 		math.NaN(), math.Inf(1), math.Inf(-1)}
 	rng := rand.New(rand.NewPCG(1, 2))
 	for i := 0; i < 300; i++ {
@@ -53,6 +55,25 @@ func TestMessagesMatchFmt(t *testing.T) {
 				want = fmt.Sprintf("%s %g × %g mm, E %g GPa", s.Spec.Profile, s.Spec.WidthMM, s.Spec.ThicknessMM, s.E)
 			}
 			check("describe", s.describe(), want)
+		}
+	}
+}
+
+// TestFixed0MatchesFmt: the integer path of %.0f agrees with fmt at and
+// beside every half from −3000 to 3000 and at the ends of its range.
+func TestFixed0MatchesFmt(t *testing.T) {
+	var vals []float64
+	for k := -3000.0; k <= 3000; k += 0.5 {
+		vals = append(vals, k, math.Nextafter(k, math.Inf(1)), math.Nextafter(k, math.Inf(-1)))
+	}
+	for _, e := range []float64{1 << 52, 1 << 53} {
+		for _, v := range []float64{e, -e} {
+			vals = append(vals, v, math.Nextafter(v, 0), math.Nextafter(v, math.Inf(1)), math.Nextafter(v, math.Inf(-1)))
+		}
+	}
+	for _, v := range vals {
+		if got, want := string(fixed0(nil, v)), fmt.Sprintf("%.0f", v); got != want {
+			t.Errorf("%v (%b): fixed0 %q, fmt %q", v, v, got, want)
 		}
 	}
 }
