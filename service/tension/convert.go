@@ -243,13 +243,18 @@ func (m *Model) Convert(spec SpokeSpec, reading float64) (Result, error) {
 	if err != nil {
 		return Result{}, err
 	}
-	return p.convert(reading, "/reading")
+	return p.convert(reading, readingPointer)
 }
 
-func (p *prepared) convert(reading float64, at string) (Result, error) {
+func readingPointer() string { return "/reading" }
+
+// convert converts one reading; at gives the reading's JSON pointer and is
+// called only when there is an error to report (building "/readings/17"
+// for every reading of a request cost three allocations each).
+func (p *prepared) convert(reading float64, at func() string) (Result, error) {
 	m := p.m
 	if !finite(reading) || math.Abs(reading) > maxReading {
-		return Result{}, badField(at, "reading must be a finite dial reading")
+		return Result{}, badField(at(), "reading must be a finite dial reading")
 	}
 	res := Result{Reading: reading, Reliable: true, StiffnessRatio: p.ratio, DeltaDiameterMM: p.deltaD}
 	// Warnings and cautions gather on the stack; the result gets one
@@ -286,20 +291,20 @@ func (p *prepared) convert(reading float64, at string) (Result, error) {
 	ph := m.Physical
 	if ph == nil {
 		if p.col >= 0 {
-			return Result{}, impossible(at, "reading %g is outside the calibrated column's table and the calibration cannot identify a tool model to go beyond it: %s", reading, m.Unidentified)
+			return Result{}, impossible(at(), "reading %g is outside the calibrated column's table and the calibration cannot identify a tool model to go beyond it: %s", reading, m.Unidentified)
 		}
 		return Result{}, impossible(p.at, "%s", m.Unidentified)
 	}
 	unit := m.UnitMM
 	t, st, ok := inverse(ph.Params, p.es, unit, reading)
 	if !ok {
-		return Result{}, impossible(at, "reading %g is beyond what the tool model can produce for a %s spoke; check the reading and the section", reading, p.sec.describe())
+		return Result{}, impossible(at(), "reading %g is beyond what the tool model can produce for a %s spoke; check the reading and the section", reading, p.sec.describe())
 	}
 	var gbuf [16]float64
 	g := paramBuf(gbuf[:], len(ph.Params))
 	drdT := gradient(ph.Params, p.es, unit, st, g)
 	if !(drdT > 0) {
-		return Result{}, impossible(at, "the tool model's curve is not monotone at reading %g for this section; no tension is given", reading)
+		return Result{}, impossible(at(), "the tool model's curve is not monotone at reading %g for this section; no tension is given", reading)
 	}
 	w := p.halfWidthUnits(g)
 	lo, hi, err := p.interval(reading, w, g, st.teff, at)
@@ -323,7 +328,7 @@ func (p *prepared) convert(reading float64, at string) (Result, error) {
 // interval solves the inverse-prediction set {T : |r − r̂(T)| ≤ w(T)},
 // starting from the half-width at the estimate and re-evaluating it once
 // at each end.
-func (p *prepared) interval(reading, w0 float64, g []float64, teGuess float64, at string) (lo, hi float64, err error) {
+func (p *prepared) interval(reading, w0 float64, g []float64, teGuess float64, at func() string) (lo, hi float64, err error) {
 	ph, unit := p.m.Physical, p.m.UnitMM
 	end := func(sign float64, w float64) (float64, bool) {
 		t, st, ok := inverseFrom(ph.Params, p.es, unit, reading+sign*w, teGuess)
@@ -343,7 +348,7 @@ func (p *prepared) interval(reading, w0 float64, g []float64, teGuess float64, a
 	}
 	hi, okHi := end(+1, w0)
 	if !okHi {
-		return 0, 0, impossible(at, "reading %g is within the uncertainty band of the highest reading the tool model can produce for this section; the tension has no upper bound", reading)
+		return 0, 0, impossible(at(), "reading %g is within the uncertainty band of the highest reading the tool model can produce for this section; the tension has no upper bound", reading)
 	}
 	return lo, hi, nil
 }
