@@ -181,7 +181,7 @@ func (m *Model) Audit(req AuditRequest) (AuditResult, error) {
 			p = &pp
 			preps[rd.Side] = p
 		}
-		res, err := p.convert(rd.Reading, ptr("readings", i, "reading"))
+		res, err := p.convert(rd.Reading, func() string { return ptr("readings", i, "reading") })
 		if err != nil {
 			errs = append(errs, err)
 			continue

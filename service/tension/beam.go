@@ -28,7 +28,11 @@ func phi(u float64) (f, df float64) {
 		df = u * (-4.0/5 + u2*(68.0/105+u2*(-372.0/945+u2*11056.0/51975)))
 		return f, df
 	}
-	th := math.Tanh(u)
+	return phiTanh(u, math.Tanh(u))
+}
+
+// phiTanh is phi's closed form for u ≥ seriesU, given th = tanh u.
+func phiTanh(u, th float64) (f, df float64) {
 	f = 3 * (u - th) / (u * u * u)
 	df = 3*th*th/(u*u*u) - 3*f/u
 	return f, df
@@ -44,13 +48,33 @@ func gammaFn(u float64) float64 {
 		return 9 * p / (f * f)
 	}
 	if u > 40 {
+		return gammaTanh(u, 1)
+	}
+	return gammaTanh(u, math.Tanh(u))
+}
+
+// gammaTanh is gammaFn's closed form for u ≥ seriesU, given th = tanh u
+// (not needed beyond u = 40).
+func gammaTanh(u, th float64) float64 {
+	if u > 40 {
 		// tanh u = 1 and sech²u < 1e-34 in float64: γ = u(u − 1.5)/(u − 1)².
 		return u * (u - 1.5) / ((u - 1) * (u - 1))
 	}
-	th := math.Tanh(u)
 	n := u - 1.5*th + 0.5*u*(1-th*th) // sech²u = 1 − tanh²u
 	d := u - th
 	return u * n / (d * d)
+}
+
+// phiGamma returns phi(u) and gammaFn(u), bit for bit, evaluating tanh u
+// once for both.
+func phiGamma(u float64) (f, df, g float64) {
+	if u < seriesU {
+		f, df = phi(u)
+		return f, df, gammaFn(u)
+	}
+	th := math.Tanh(u)
+	f, df = phiTanh(u, th)
+	return f, df, gammaTanh(u, th)
 }
 
 // gammaPrimeOverU returns γ'(u)/u, finite as u → 0 (limit −8/175, from
@@ -76,7 +100,7 @@ func beamAt(tN, sMM, ei float64) beam {
 		tN = 0
 	}
 	u := 0.5 * sMM * math.Sqrt(tN/ei)
-	f, df := phi(u)
+	f, df, g := phiGamma(u)
 	c0 := sMM * sMM * sMM / (48 * ei) // handbook beam compliance
 	var b beam
 	b.C = c0 * f
@@ -91,7 +115,6 @@ func beamAt(tN, sMM, ei float64) beam {
 	b.CT = c0 * dfOverU * sMM * sMM / (8 * ei)
 	b.CS = 3*b.C/sMM + c0*df*u/sMM
 	b.CEI = -b.C/ei - c0*df*u/(2*ei)
-	g := gammaFn(u)
 	gpu := gammaPrimeOverU(u)
 	b.G = 2 * g / sMM
 	b.GT = 2 / sMM * gpu * sMM * sMM / (8 * ei)
@@ -100,14 +123,14 @@ func beamAt(tN, sMM, ei float64) beam {
 	return b
 }
 
-// beamCG evaluates only the compliance C and path factor G of a span.
-func beamCG(tN, sMM, ei float64) (c, g float64) {
+// beamG evaluates only the path factor G of a span (the value beamAt
+// gives, without the compliance and derivatives).
+func beamG(tN, sMM, ei float64) float64 {
 	if tN < 0 {
 		tN = 0
 	}
 	u := 0.5 * sMM * math.Sqrt(tN/ei)
-	f, _ := phi(u)
-	return sMM * sMM * sMM / (48 * ei) * f, 2 * gammaFn(u) / sMM
+	return 2 * gammaFn(u) / sMM
 }
 
 // midspanDeflectionMM is δ = C·P for a point load pN at midspan.

@@ -233,3 +233,30 @@ func TestInvertCompliance(t *testing.T) {
 		t.Error("compliance above the untensioned beam inverted")
 	}
 }
+
+// TestBeamSharedTanhIdentical: phiGamma (one tanh for φ and γ) and beamG
+// (γ only) give exactly the values of phi and gammaFn evaluated apart, on
+// both sides of the series switch and of the u > 40 branch; the speed
+// path must not move any result by even one bit.
+func TestBeamSharedTanhIdentical(t *testing.T) {
+	us := []float64{0, 1e-300, 1e-6, 0.05, seriesU * (1 - 1e-16), seriesU, 0.1000000001, 0.3, 0.625, 1, 2.1, 5, 17.3, 39.999, 40, 40.0000001, 41, 1e3, 1e8}
+	for u := 1e-4; u < 200; u *= 1.0137 {
+		us = append(us, u)
+	}
+	for _, u := range us {
+		f, df, g := phiGamma(u)
+		wf, wdf := phi(u)
+		if wg := gammaFn(u); f != wf || df != wdf || g != wg {
+			t.Errorf("u %v: phiGamma (%v, %v, %v), phi/gammaFn (%v, %v, %v)", u, f, df, g, wf, wdf, wg)
+		}
+	}
+	for _, tn := range []float64{0, 1e-9, 0.5, 50, 400, 1000, 1600, 2500, 1e5} {
+		for _, s := range []float64{25, 50, 60} {
+			for _, ei := range []float64{1.5e4, steel2mm, 1e6} {
+				if g, want := beamG(tn, s, ei), beamAt(tn, s, ei).G; g != want {
+					t.Errorf("T %v S %v EI %v: beamG %v, beamAt G %v", tn, s, ei, g, want)
+				}
+			}
+		}
+	}
+}

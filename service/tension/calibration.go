@@ -2,7 +2,6 @@ package tension
 
 import (
 	"errors"
-	"fmt"
 	"math"
 	"sort"
 
@@ -140,11 +139,25 @@ func sameSection(a, b section) bool {
 		eq(a.Spec.WidthMM, b.Spec.WidthMM) && eq(a.Spec.ThicknessMM, b.Spec.ThicknessMM) && eq(a.E, b.E)
 }
 
+// describe: "round %g mm, E %g GPa", or "%s %g × %g mm, E %g GPa" for
+// other profiles.
 func (s section) describe() string {
+	var buf [96]byte
+	b := buf[:0]
 	if s.Spec.Profile == string(spoke.Round) {
-		return fmt.Sprintf("round %g mm, E %g GPa", s.Spec.DiameterMM, s.E)
+		b = append(b, "round "...)
+		b = short(b, s.Spec.DiameterMM)
+	} else {
+		b = append(b, s.Spec.Profile...)
+		b = append(b, ' ')
+		b = short(b, s.Spec.WidthMM)
+		b = append(b, " × "...)
+		b = short(b, s.Spec.ThicknessMM)
 	}
-	return fmt.Sprintf("%s %g × %g mm, E %g GPa", s.Spec.Profile, s.Spec.WidthMM, s.Spec.ThicknessMM, s.E)
+	b = append(b, " mm, E "...)
+	b = short(b, s.E)
+	b = append(b, " GPa"...)
+	return string(b)
 }
 
 // checkedColumn is a validated column.

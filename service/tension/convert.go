@@ -1,9 +1,6 @@
 package tension
 
-import (
-	"fmt"
-	"math"
-)
+import "math"
 
 // Result thresholds (DESIGN.md §4.2).
 const (
@@ -139,22 +136,34 @@ func (m *Model) prepare(spec SpokeSpec, at string) (prepared, error) {
 	}
 	switch {
 	case rr > ratioUnreliable:
+		p.secWarns = make([]Warning, 0, 3)
+	case rr > ratioCalibrate:
+		p.secWarns = make([]Warning, 0, 2)
+	}
+	switch {
+	case rr > ratioUnreliable:
 		p.unrel = true
-		p.secWarns = append(p.secWarns, Warning{WarnUnreliable, "warning", fmt.Sprintf(
-			"the %s spoke's bending stiffness is %.2f× that of the nearest calibrated column (beyond %.1f×): results are unreliable", desc, p.ratio, ratioUnreliable)})
+		p.secWarns = append(p.secWarns, Warning{WarnUnreliable, "warning", msgUnreliableRatio(desc, p.ratio)})
 		fallthrough
 	case rr > ratioCalibrate:
-		p.secWarns = append(p.secWarns, Warning{WarnStiffnessCalibrate, "warning", fmt.Sprintf(
-			"stiffness ratio %.2f is beyond %.1f: calibrate this size with known tensions (about 600, 1000 and 1400 N, three readings each)", p.ratio, ratioCalibrate)})
+		p.secWarns = append(p.secWarns, Warning{WarnStiffnessCalibrate, "warning", msgCalibrate(p.ratio)})
 		fallthrough
 	case rr > ratioVerify:
-		p.secWarns = append(p.secWarns, Warning{WarnStiffnessVerify, "warning", fmt.Sprintf(
-			"stiffness ratio %.2f is beyond %.1f: verify the tool on this spoke with one known tension", p.ratio, ratioVerify)})
+		p.secWarns = append(p.secWarns, Warning{WarnStiffnessVerify, "warning", msgVerify(p.ratio)})
 	}
 	if !sameE {
-		p.secCauts = append(p.secCauts, fmt.Sprintf("No calibrated column has this spoke's modulus (%g GPa); the result rests on the tool model and the material's stiffness.", sec.E))
+		p.secCauts = append(p.secCauts, msgOtherModulus(sec.E))
 	}
 	return p, nil
+}
+
+// paramBuf returns a slice of n values backed by buf when buf is long
+// enough (the per-reading gradient then stays off the heap).
+func paramBuf(buf []float64, n int) []float64 {
+	if n <= len(buf) {
+		return buf[:n]
+	}
+	return make([]float64, n)
 }
 
 // halfWidthUnits is t₀.₉₇₅·√(s² + gᵀCov g + m²), in dial units.
@@ -234,16 +243,25 @@ func (m *Model) Convert(spec SpokeSpec, reading float64) (Result, error) {
 	if err != nil {
 		return Result{}, err
 	}
-	return p.convert(reading, "/reading")
+	return p.convert(reading, readingPointer)
 }
 
-func (p *prepared) convert(reading float64, at string) (Result, error) {
+func readingPointer() string { return "/reading" }
+
+// convert converts one reading; at gives the reading's JSON pointer and is
+// called only when there is an error to report (building "/readings/17"
+// for every reading of a request cost three allocations each).
+func (p *prepared) convert(reading float64, at func() string) (Result, error) {
 	m := p.m
 	if !finite(reading) || math.Abs(reading) > maxReading {
-		return Result{}, badField(at, "reading must be a finite dial reading")
+		return Result{}, badField(at(), "reading must be a finite dial reading")
 	}
-	res := Result{Reading: reading, Reliable: true, StiffnessRatio: p.ratio, DeltaDiameterMM: p.deltaD,
-		Warnings: append([]Warning{}, p.secWarns...), Cautions: append([]string{}, p.secCauts...)}
+	res := Result{Reading: reading, Reliable: true, StiffnessRatio: p.ratio, DeltaDiameterMM: p.deltaD}
+	// Warnings and cautions gather on the stack; the result gets one
+	// allocation for each (an empty, non-nil slice when there are none).
+	var wbuf [8]Warning
+	var cbuf [4]string
+	warns, cauts := append(wbuf[:0], p.secWarns...), append(cbuf[:0], p.secCauts...)
 	if p.col >= 0 && m.Columns[p.col].Curve != nil {
 		cv := m.Columns[p.col].Curve.cubic()
 		if reading >= cv.X[0] && reading <= cv.X[len(cv.X)-1] {
@@ -260,11 +278,12 @@ func (p *prepared) convert(reading float64, at string) (Result, error) {
 			res.IntervalN = [2]float64{math.Max(lo, 0), hi}
 			res.ResolutionNPerUnit = slope
 			if resOnly {
-				res.Warnings = append(res.Warnings, Warning{WarnResolutionOnlyInterval, "info",
+				warns = append(warns, Warning{WarnResolutionOnlyInterval, "info",
 					"without a fitted tool model the interval covers only the dial's half-unit reading resolution, not the table's own error"})
 			}
 			res.SensitivityNPer001MM = p.sensitivity(reading)
-			p.finish(&res.Reliable, &res.Warnings, &res.Cautions, t, res.IntervalN, res.ResolutionNPerUnit, res.Status)
+			warns, cauts = p.finish(&res.Reliable, warns, cauts, t, res.IntervalN, res.ResolutionNPerUnit, res.Status)
+			res.Warnings, res.Cautions = append([]Warning{}, warns...), append([]string{}, cauts...)
 			res.TensionKgf, res.TensionLbf = KgfFromN(t), LbfFromN(t)
 			return res, nil
 		}
@@ -272,19 +291,20 @@ func (p *prepared) convert(reading float64, at string) (Result, error) {
 	ph := m.Physical
 	if ph == nil {
 		if p.col >= 0 {
-			return Result{}, impossible(at, "reading %g is outside the calibrated column's table and the calibration cannot identify a tool model to go beyond it: %s", reading, m.Unidentified)
+			return Result{}, impossible(at(), "reading %g is outside the calibrated column's table and the calibration cannot identify a tool model to go beyond it: %s", reading, m.Unidentified)
 		}
 		return Result{}, impossible(p.at, "%s", m.Unidentified)
 	}
 	unit := m.UnitMM
 	t, st, ok := inverse(ph.Params, p.es, unit, reading)
 	if !ok {
-		return Result{}, impossible(at, "reading %g is beyond what the tool model can produce for a %s spoke; check the reading and the section", reading, p.sec.describe())
+		return Result{}, impossible(at(), "reading %g is beyond what the tool model can produce for a %s spoke; check the reading and the section", reading, p.sec.describe())
 	}
-	g := make([]float64, len(ph.Params))
+	var gbuf [16]float64
+	g := paramBuf(gbuf[:], len(ph.Params))
 	drdT := gradient(ph.Params, p.es, unit, st, g)
 	if !(drdT > 0) {
-		return Result{}, impossible(at, "the tool model's curve is not monotone at reading %g for this section; no tension is given", reading)
+		return Result{}, impossible(at(), "the tool model's curve is not monotone at reading %g for this section; no tension is given", reading)
 	}
 	w := p.halfWidthUnits(g)
 	lo, hi, err := p.interval(reading, w, g, st.teff, at)
@@ -299,7 +319,8 @@ func (p *prepared) convert(reading float64, at string) (Result, error) {
 	}
 	res.Status = p.modelStatus(t)
 	res.SensitivityNPer001MM = p.sensitivityFrom(reading, st.teff)
-	p.finish(&res.Reliable, &res.Warnings, &res.Cautions, t, res.IntervalN, res.ResolutionNPerUnit, res.Status)
+	warns, cauts = p.finish(&res.Reliable, warns, cauts, t, res.IntervalN, res.ResolutionNPerUnit, res.Status)
+	res.Warnings, res.Cautions = append([]Warning{}, warns...), append([]string{}, cauts...)
 	res.TensionKgf, res.TensionLbf = KgfFromN(t), LbfFromN(t)
 	return res, nil
 }
@@ -307,7 +328,7 @@ func (p *prepared) convert(reading float64, at string) (Result, error) {
 // interval solves the inverse-prediction set {T : |r − r̂(T)| ≤ w(T)},
 // starting from the half-width at the estimate and re-evaluating it once
 // at each end.
-func (p *prepared) interval(reading, w0 float64, g []float64, teGuess float64, at string) (lo, hi float64, err error) {
+func (p *prepared) interval(reading, w0 float64, g []float64, teGuess float64, at func() string) (lo, hi float64, err error) {
 	ph, unit := p.m.Physical, p.m.UnitMM
 	end := func(sign float64, w float64) (float64, bool) {
 		t, st, ok := inverseFrom(ph.Params, p.es, unit, reading+sign*w, teGuess)
@@ -327,7 +348,7 @@ func (p *prepared) interval(reading, w0 float64, g []float64, teGuess float64, a
 	}
 	hi, okHi := end(+1, w0)
 	if !okHi {
-		return 0, 0, impossible(at, "reading %g is within the uncertainty band of the highest reading the tool model can produce for this section; the tension has no upper bound", reading)
+		return 0, 0, impossible(at(), "reading %g is within the uncertainty band of the highest reading the tool model can produce for this section; the tension has no upper bound", reading)
 	}
 	return lo, hi, nil
 }
@@ -343,34 +364,32 @@ func (p *prepared) modelStatus(t float64) string {
 }
 
 // finish adds the result-level warnings and cautions.
-func (p *prepared) finish(reliable *bool, warns *[]Warning, cauts *[]string, t float64, iv [2]float64, resolution float64, status string) {
+func (p *prepared) finish(reliable *bool, warns []Warning, cauts []string, t float64, iv [2]float64, resolution float64, status string) ([]Warning, []string) {
 	rng := p.m.TensionRangeN
 	if t < rng[0] || t > rng[1] {
-		*warns = append(*warns, Warning{WarnOutsideTensionRange, "warning", fmt.Sprintf(
-			"%.0f N lies outside the calibrated tensions %.0f–%.0f N", t, rng[0], rng[1])})
+		warns = append(warns, Warning{WarnOutsideTensionRange, "warning", msgOutsideRange(t, rng)})
 	}
 	if t > 0 && resolution/t > resolutionMax {
-		*warns = append(*warns, Warning{WarnCoarseResolution, "warning", fmt.Sprintf(
-			"one dial unit is %.0f N here (%.1f %% of the tension, beyond %.0f %%): read carefully and average several readings", resolution, 100*resolution/t, 100*resolutionMax)})
+		warns = append(warns, Warning{WarnCoarseResolution, "warning", msgCoarse(resolution, t)})
 	}
 	hw := (iv[1] - iv[0]) / 2
 	wide := !(t > 0) || hw/t > halfWidthMax
 	if wide {
-		*warns = append(*warns, Warning{WarnUnreliable, "warning", fmt.Sprintf(
-			"the 95 %% interval is ±%.0f N (%.1f %% of the tension, beyond %.0f %%)", hw, 100*hw/math.Max(t, 1e-9), 100*halfWidthMax)})
+		warns = append(warns, Warning{WarnUnreliable, "warning", msgWide(hw, 100*hw/math.Max(t, 1e-9))})
 	}
 	if wide || p.unrel {
 		*reliable = false
-		*cauts = append(*cauts, fmt.Sprintf("Do not use %.0f N as a bare number: the true tension may lie anywhere in %.0f–%.0f N. Calibrate this spoke size against known tensions before building to it.", t, iv[0], iv[1]))
+		cauts = append(cauts, msgBareNumber(t, iv))
 	}
 	if status == StatusExtrapolated {
-		*cauts = append(*cauts, "This conversion is extrapolated beyond the calibration (another section, material or tension range); check it against a known tension before relying on it, since a wrongly tensioned wheel can fail.")
+		cauts = append(cauts, "This conversion is extrapolated beyond the calibration (another section, material or tension range); check it against a known tension before relying on it, since a wrongly tensioned wheel can fail.")
 	}
 	for _, w := range p.m.Warnings {
 		if w.Code == WarnSpanMismatch || w.Code == WarnModelMarginal {
-			*warns = append(*warns, w)
+			warns = append(warns, w)
 		}
 	}
+	return warns, cauts
 }
 
 // Target returns the reading at which the section reaches tensionN.
@@ -389,8 +408,10 @@ func (p *prepared) target(tn float64, at string) (Target, error) {
 		return Target{}, badField(at, "the target tension must be positive and at most %d N", maxTensionN)
 	}
 	tg := Target{TensionN: tn, TensionKgf: KgfFromN(tn), TensionLbf: LbfFromN(tn), Reliable: true,
-		StiffnessRatio: p.ratio, DeltaDiameterMM: p.deltaD,
-		Warnings: append([]Warning{}, p.secWarns...), Cautions: append([]string{}, p.secCauts...)}
+		StiffnessRatio: p.ratio, DeltaDiameterMM: p.deltaD}
+	var wbuf [8]Warning
+	var cbuf [4]string
+	warns, cauts := append(wbuf[:0], p.secWarns...), append(cbuf[:0], p.secCauts...)
 	if p.col >= 0 && m.Columns[p.col].Curve != nil {
 		cv := m.Columns[p.col].Curve.cubic()
 		if r, ok := cv.invert(tn); ok {
@@ -406,11 +427,12 @@ func (p *prepared) target(tn float64, at string) (Target, error) {
 			lo, _ := cv.at(r - w)
 			hi, _ := cv.at(r + w)
 			if resOnly {
-				tg.Warnings = append(tg.Warnings, Warning{WarnResolutionOnlyInterval, "info",
+				warns = append(warns, Warning{WarnResolutionOnlyInterval, "info",
 					"without a fitted tool model the interval covers only the dial's half-unit reading resolution"})
 			}
 			tg.SensitivityNPer001MM = p.sensitivity(r)
-			p.finish(&tg.Reliable, &tg.Warnings, &tg.Cautions, tn, [2]float64{math.Max(lo, 0), hi}, slope, tg.Status)
+			warns, cauts = p.finish(&tg.Reliable, warns, cauts, tn, [2]float64{math.Max(lo, 0), hi}, slope, tg.Status)
+			tg.Warnings, tg.Cautions = append([]Warning{}, warns...), append([]string{}, cauts...)
 			return tg, nil
 		}
 	}
@@ -426,7 +448,8 @@ func (p *prepared) target(tn float64, at string) (Target, error) {
 	if !ok {
 		return Target{}, impossible(at, "the tool model cannot reach %g N on a %s spoke", tn, p.sec.describe())
 	}
-	g := make([]float64, len(ph.Params))
+	var gbuf [16]float64
+	g := paramBuf(gbuf[:], len(ph.Params))
 	drdT := gradient(ph.Params, p.es, unit, st, g)
 	if !(drdT > 0) {
 		return Target{}, impossible(at, "the tool model's curve is not monotone at %g N for this section", tn)
@@ -442,6 +465,7 @@ func (p *prepared) target(tn float64, at string) (Target, error) {
 	tg.SensitivityNPer001MM = p.sensitivity(r)
 	// The tension interval this reading band implies, for the reliability test.
 	lo, hi := tn-w/drdT, tn+w/drdT
-	p.finish(&tg.Reliable, &tg.Warnings, &tg.Cautions, tn, [2]float64{math.Max(lo, 0), hi}, tg.ResolutionNPerUnit, tg.Status)
+	warns, cauts = p.finish(&tg.Reliable, warns, cauts, tn, [2]float64{math.Max(lo, 0), hi}, tg.ResolutionNPerUnit, tg.Status)
+	tg.Warnings, tg.Cautions = append([]Warning{}, warns...), append([]string{}, cauts...)
 	return tg, nil
 }

@@ -77,7 +77,7 @@ func (m *Model) ConvertRequest(req ConversionRequest) (ConversionResponse, error
 	out := ConversionResponse{Results: make([]Result, 0, len(req.Readings))}
 	var errs []error
 	for i, r := range req.Readings {
-		res, err := p.convert(r, ptr("readings", i))
+		res, err := p.convert(r, func() string { return ptr("readings", i) })
 		if err != nil {
 			errs = append(errs, err)
 			continue

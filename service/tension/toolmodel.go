@@ -106,7 +106,7 @@ func inverseFrom(th []float64, s evalSection, unit, r, guessN float64) (tN float
 	if !ok {
 		return 0, st, false
 	}
-	_, gl := beamCG(te, span, ei)
+	gl := beamG(te, span, ei)
 	tN = te - beta*s.ea*gl*delta*delta
 	if !(tN > 0) || !finite(tN) {
 		return 0, st, false
