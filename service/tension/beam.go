@@ -184,6 +184,9 @@ func invertComplianceFrom(c, sMM, ei, guessN float64) (tN float64, ok bool) {
 		if u > 0 {
 			next = w - g/(-df/(f*f)/(2*u))
 		}
+		if next == w {
+			break // Newton's step no longer moves w: converged
+		}
 		if !(next > lo && next < hi) {
 			next = 0.5 * (lo + hi)
 		}
