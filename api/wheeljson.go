@@ -23,13 +23,24 @@ type wheelParser struct {
 	a   *arena
 }
 
-// arena hands out the decoded wheels' optional numbers from shared slabs,
-// so that a batch does not allocate each one. A slab is replaced, never
-// grown, so that the pointers stay valid.
+// arena hands out the decoded wheels' optional numbers and parts from
+// shared slabs, so that a batch does not allocate each one. A slab is
+// replaced, never grown, so that the pointers stay valid.
 type arena struct {
-	f []float64
-	n []int
+	f  []float64
+	n  []int
+	sp []geometry.Spoke
+	st []geometry.Stock
 }
+
+// reuse lets the next wheel overwrite the slabs: only once nothing decoded
+// so far is referenced any more.
+func (a *arena) reuse() {
+	a.f, a.n, a.sp, a.st = a.f[:0], a.n[:0], a.sp[:0], a.st[:0]
+}
+
+// drop forgets the slabs, leaving what was decoded to whatever holds it.
+func (a *arena) drop() { *a = arena{} }
 
 func (a *arena) float(v float64) *float64 {
 	if a == nil {
@@ -38,7 +49,7 @@ func (a *arena) float(v float64) *float64 {
 		return p
 	}
 	if len(a.f) == cap(a.f) {
-		a.f = make([]float64, 0, 4096)
+		a.f = make([]float64, 0, 64)
 	}
 	a.f = append(a.f, v)
 	return &a.f[len(a.f)-1]
@@ -51,16 +62,52 @@ func (a *arena) int(v int) *int {
 		return p
 	}
 	if len(a.n) == cap(a.n) {
-		a.n = make([]int, 0, 1024)
+		a.n = make([]int, 0, 16)
 	}
 	a.n = append(a.n, v)
 	return &a.n[len(a.n)-1]
 }
 
+func (a *arena) spoke() *geometry.Spoke {
+	if a == nil {
+		return new(geometry.Spoke)
+	}
+	if len(a.sp) == cap(a.sp) {
+		a.sp = make([]geometry.Spoke, 0, 4)
+	}
+	a.sp = append(a.sp, geometry.Spoke{})
+	return &a.sp[len(a.sp)-1]
+}
+
+func (a *arena) stock() *geometry.Stock {
+	if a == nil {
+		return new(geometry.Stock)
+	}
+	if len(a.st) == cap(a.st) {
+		a.st = make([]geometry.Stock, 0, 4)
+	}
+	a.st = append(a.st, geometry.Stock{})
+	return &a.st[len(a.st)-1]
+}
+
 // parseWheel decodes b into w; ok is false when the fast path declined (w
 // is then garbage and must be decoded again the slow way). a may be nil.
 func parseWheel(b []byte, w *geometry.Wheel, a *arena) (ok bool) {
-	p := wheelParser{b: b, a: a}
+	end, ok := parseWheelAt(b, 0, w, a)
+	if !ok {
+		return false
+	}
+	p := wheelParser{b: b, i: end}
+	p.ws()
+	return p.i == len(p.b)
+}
+
+// parseWheelAt decodes the object that starts at b[at] (after any
+// whitespace) and returns where it ends; what follows is not looked at.
+// It agrees with parseWheel(b[at:end]) and, like it, declines (ok = false)
+// whatever it does not take.
+func parseWheelAt(b []byte, at int, w *geometry.Wheel, a *arena) (end int, ok bool) {
+	p := wheelParser{b: b, i: at, a: a}
 	*w = geometry.Wheel{}
 	p.object(func(k []byte) bool {
 		switch string(k) {
@@ -83,20 +130,19 @@ func parseWheel(b []byte, w *geometry.Wheel, a *arena) (ok bool) {
 				return true
 			})
 		case "spoke":
-			w.Spoke = new(geometry.Spoke)
+			w.Spoke = p.a.spoke()
 			p.spoke(w.Spoke)
 		case "target_tension_n":
 			w.TargetTensionN = p.numPtr()
 		case "stock":
-			w.Stock = new(geometry.Stock)
+			w.Stock = p.a.stock()
 			p.stock(w.Stock)
 		default:
 			return false
 		}
 		return true
 	})
-	p.ws()
-	return !p.bad && p.i == len(p.b)
+	return p.i, !p.bad
 }
 
 func (p *wheelParser) hub(h *geometry.Hub) {
@@ -222,14 +268,11 @@ func (p *wheelParser) stock(s *geometry.Stock) {
 }
 
 func (p *wheelParser) ws() {
-	for p.i < len(p.b) {
-		switch p.b[p.i] {
-		case ' ', '\t', '\n', '\r':
-			p.i++
-		default:
-			return
-		}
+	b, i := p.b, p.i // locals: the loop then keeps them in registers
+	for i < len(b) && (b[i] == ' ' || b[i] == '\t' || b[i] == '\n' || b[i] == '\r') {
+		i++
 	}
+	p.i = i
 }
 
 // expect consumes c after whitespace.
@@ -319,19 +362,16 @@ func (p *wheelParser) key() []byte {
 	if !p.expect('"') {
 		return nil
 	}
-	start := p.i
-	for p.i < len(p.b) {
-		c := p.b[p.i]
-		switch {
+	b, start := p.b, p.i
+	for i := start; i < len(b); i++ {
+		switch c := b[i]; {
 		case c == '"':
-			k := p.b[start:p.i]
-			p.i++
-			return k
+			p.i = i + 1
+			return b[start:i]
 		case c == '\\' || c < 0x20 || c >= 0x80:
 			p.bad = true
 			return nil
 		}
-		p.i++
 	}
 	p.bad = true
 	return nil
@@ -450,44 +490,6 @@ func (p *wheelParser) integer() int {
 func (p *wheelParser) numPtr() *float64 { return p.a.float(p.number()) }
 
 func (p *wheelParser) intPtr() *int { return p.a.int(p.integer()) }
-
-// splitWheels finds the elements of a body {"wheels": [e0, e1, …]} without
-// decoding them. ok is false for any other shape (another member, escapes
-// in the member name, unbalanced brackets, …): the caller then decodes the
-// envelope with encoding/json, which also words the error.
-func splitWheels(b []byte) (items [][]byte, ok bool) {
-	p := wheelParser{b: b}
-	if !p.expect('{') || string(p.key()) != "wheels" || !p.expect(':') || !p.expect('[') {
-		return nil, false
-	}
-	items = make([][]byte, 0, len(b)/300)
-	if p.peek(']') {
-		p.i++
-	} else {
-		for {
-			p.ws()
-			start := p.i
-			if !p.skip() {
-				return nil, false
-			}
-			items = append(items, b[start:p.i])
-			p.ws()
-			if p.i < len(b) && b[p.i] == ',' {
-				p.i++
-				continue
-			}
-			if !p.expect(']') {
-				return nil, false
-			}
-			break
-		}
-	}
-	if !p.expect('}') {
-		return nil, false
-	}
-	p.ws()
-	return items, p.i == len(b)
-}
 
 // skip passes over one value: strings (escapes honoured) and brackets are
 // matched; what lies between is left to the element's own decoder. A
