@@ -3,6 +3,7 @@ package api
 import (
 	"encoding/json"
 	"fmt"
+	"math"
 	"math/rand/v2"
 	"reflect"
 	"strconv"
@@ -359,5 +360,43 @@ func TestBatchAnswerAgrees(t *testing.T) {
 	}
 	if parts, ok := s.batchFromBody([]byte(inside), instance, 2, 1); !ok || len(parts) != 1 || parts[0].n != 3 {
 		t.Fatalf("the body with sections went into %d parts (ok %v), want 1 of 3 wheels", len(parts), ok)
+	}
+}
+
+// TestAppendFloatFixed: appendFloat writes what encoding/json writes for a
+// float64 (json.Marshal is the reference), over random bit patterns, short
+// decimals, integers, and the edges of the 'f' form's range.
+func TestAppendFloatFixed(t *testing.T) {
+	rng := rand.New(rand.NewPCG(5, 6))
+	var vals []float64
+	for range 200000 {
+		vals = append(vals, math.Float64frombits(rng.Uint64()))
+	}
+	for range 200000 {
+		// a few digits at a scale that puts the point anywhere
+		v := float64(rng.IntN(1_000_000)) * math.Pow(10, float64(rng.IntN(30)-12))
+		if rng.IntN(2) == 0 {
+			v = -v
+		}
+		vals = append(vals, v, math.Nextafter(v, 0), math.Nextafter(v, math.Inf(1)))
+	}
+	for e := -8; e <= 22; e++ {
+		p := math.Pow(10, float64(e))
+		vals = append(vals, p, -p, math.Nextafter(p, 0), math.Nextafter(p, 2*p), 1.5*p, 123456789*p)
+	}
+	vals = append(vals, 0, math.Copysign(0, -1), 1e21, math.Nextafter(1e21, 0), 1e-6, math.Nextafter(1e-6, 0),
+		math.MaxFloat64, math.SmallestNonzeroFloat64, 9007199254740993, 292.5450000260333, 1100, 67.5)
+	for _, v := range vals {
+		if math.IsNaN(v) || math.IsInf(v, 0) {
+			continue
+		}
+		want, err := json.Marshal(v)
+		if err != nil {
+			t.Fatal(err)
+		}
+		got, err := appendFloat(nil, v)
+		if err != nil || string(got) != string(want) {
+			t.Fatalf("%b: appendFloat %q (%v), encoding/json %q", v, got, err, want)
+		}
 	}
 }
