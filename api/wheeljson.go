@@ -1,6 +1,8 @@
 package api
 
 import (
+	"encoding/binary"
+	"math/bits"
 	"strconv"
 
 	"wheelbench/service/geometry"
@@ -363,18 +365,35 @@ func (p *wheelParser) key() []byte {
 		return nil
 	}
 	b, start := p.b, p.i
-	for i := start; i < len(b); i++ {
-		switch c := b[i]; {
-		case c == '"':
-			p.i = i + 1
-			return b[start:i]
-		case c == '\\' || c < 0x20 || c >= 0x80:
-			p.bad = true
-			return nil
+	i := start
+	for ; i+8 <= len(b); i += 8 { // eight bytes at a time
+		if m := specialBytes(binary.LittleEndian.Uint64(b[i:])); m != 0 {
+			i += bits.TrailingZeros64(m) / 8
+			break
 		}
 	}
-	p.bad = true
+	for ; i < len(b); i++ {
+		if c := b[i]; c == '"' || c == '\\' || c < 0x20 || c >= 0x80 {
+			break
+		}
+	}
+	if i < len(b) && b[i] == '"' {
+		p.i = i + 1
+		return b[start:i]
+	}
+	p.bad = true // an escape, a control or non-ASCII byte, or no end
 	return nil
+}
+
+// specialBytes flags (high bit) the bytes of w, eight bytes of a key in
+// little-endian order, that end a plain key: '"', '\\', controls and
+// non-ASCII. Only the lowest flag is sure (a borrow can flag bytes above
+// a flagged one), and only the lowest is used.
+func specialBytes(w uint64) uint64 {
+	const lo, hi = 0x0101010101010101, 0x8080808080808080
+	q := w ^ ('"' * lo)
+	bs := w ^ ('\\' * lo)
+	return ((q-lo)&^q | (bs-lo)&^bs | (w-0x20*lo)&^w | w) & hi
 }
 
 // str is key as a string; the names a wheel usually holds are not copied.
@@ -467,6 +486,9 @@ func (p *wheelParser) number() float64 {
 	if p.bad {
 		return 0
 	}
+	if v, ok := exactDecimal(s); ok {
+		return v
+	}
 	v, err := strconv.ParseFloat(string(s), 64)
 	if err != nil { // out of range: encoding/json's error, not ours to word
 		p.bad = true
@@ -480,11 +502,64 @@ func (p *wheelParser) integer() int {
 		p.bad = true
 		return 0
 	}
+	if digits := bytesTrimMinus(s); len(digits) <= 18 { // no overflow
+		v := 0
+		for _, c := range digits {
+			v = v*10 + int(c-'0')
+		}
+		if len(digits) < len(s) {
+			v = -v
+		}
+		return v
+	}
 	v, err := strconv.ParseInt(string(s), 10, 0)
 	if err != nil {
 		p.bad = true
 	}
 	return int(v)
+}
+
+func bytesTrimMinus(s []byte) []byte {
+	if len(s) > 0 && s[0] == '-' {
+		return s[1:]
+	}
+	return s
+}
+
+// pow10 are the powers of ten that a float64 holds exactly.
+var pow10 = [...]float64{1, 1e1, 1e2, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8, 1e9, 1e10, 1e11, 1e12, 1e13, 1e14, 1e15}
+
+// exactDecimal is strconv.ParseFloat for a JSON number literal s (already
+// checked) without an exponent and with at most 15 digits: the digits as
+// an integer m < 2⁵³ and 10ᵏ are both exact float64s, so the one rounding
+// of m / 10ᵏ gives the float64 nearest the literal, as ParseFloat does.
+// ok is false for any other literal.
+func exactDecimal(s []byte) (v float64, ok bool) {
+	digits := bytesTrimMinus(s)
+	var m uint64
+	nd, frac, dot := 0, 0, false
+	for _, c := range digits {
+		switch {
+		case c >= '0' && c <= '9':
+			m = m*10 + uint64(c-'0')
+			nd++
+			if dot {
+				frac++
+			}
+		case c == '.':
+			dot = true
+		default: // an exponent
+			return 0, false
+		}
+	}
+	if nd > 15 {
+		return 0, false
+	}
+	v = float64(m) / pow10[frac]
+	if len(digits) < len(s) {
+		v = -v // -0 stays negative zero, as ParseFloat has it
+	}
+	return v, true
 }
 
 func (p *wheelParser) numPtr() *float64 { return p.a.float(p.number()) }

@@ -400,3 +400,81 @@ func TestAppendFloatFixed(t *testing.T) {
 		}
 	}
 }
+
+// TestNumberAgrees: the parser's numbers are strconv's, bit for bit (the
+// sign of zero included), over random literals of every length, with and
+// without fraction and exponent; its integers are strconv.ParseInt's.
+func TestNumberAgrees(t *testing.T) {
+	rng := rand.New(rand.NewPCG(7, 8))
+	digits := func(n int) string {
+		var sb strings.Builder
+		for range n {
+			sb.WriteByte(byte('0' + rng.IntN(10)))
+		}
+		return sb.String()
+	}
+	for range 300000 {
+		s := digits(1 + rng.IntN(20))
+		if len(s) > 1 && rng.IntN(4) > 0 {
+			s = strings.TrimLeft(s, "0")
+			if s == "" {
+				s = "0"
+			}
+		}
+		integer := true
+		if rng.IntN(3) > 0 {
+			s += "." + digits(1+rng.IntN(20))
+			integer = false
+		}
+		if rng.IntN(6) == 0 {
+			s += "e" + []string{"", "+", "-"}[rng.IntN(3)] + digits(1+rng.IntN(3))
+			integer = false
+		}
+		if rng.IntN(2) == 0 {
+			s = "-" + s
+		}
+		if u := strings.TrimPrefix(s, "-"); len(u) > 1 && u[0] == '0' && u[1] >= '0' && u[1] <= '9' {
+			continue // a leading zero: not a JSON number
+		}
+		p := wheelParser{b: []byte(s)}
+		got := p.number()
+		want, err := strconv.ParseFloat(s, 64)
+		if p.bad != (err != nil) || err == nil && math.Float64bits(got) != math.Float64bits(want) {
+			t.Fatalf("%s: parser %v (declined %v), strconv %v (%v)", s, got, p.bad, want, err)
+		}
+		if !integer {
+			continue
+		}
+		p = wheelParser{b: []byte(s)}
+		gi := p.integer()
+		wi, err := strconv.ParseInt(s, 10, 0)
+		if p.bad != (err != nil) || err == nil && int64(gi) != wi {
+			t.Fatalf("%s: parser %d (declined %v), strconv %d (%v)", s, gi, p.bad, wi, err)
+		}
+	}
+}
+
+// TestKeyAgrees: the word-at-a-time key scan ends a key where a byte loop
+// does, and declines the same keys, with the byte that ends it at every
+// offset.
+func TestKeyAgrees(t *testing.T) {
+	ends := []byte{'"', '\\', 0, 0x1f, 0x20, 0x7f, 0x80, 0xff, 'a', '!', '#', '[', ']'}
+	for n := range 40 {
+		for _, end := range ends {
+			for _, after := range []string{`"`, `x"`, ``} {
+				body := `"` + strings.Repeat("k", n) + string([]byte{end}) + after
+				p := wheelParser{b: []byte(body)}
+				got := p.key()
+				// the byte loop: the first byte that is not plain
+				i := 1
+				for i < len(body) && body[i] != '"' && body[i] != '\\' && body[i] >= 0x20 && body[i] < 0x80 {
+					i++
+				}
+				wantBad := i >= len(body) || body[i] != '"'
+				if p.bad != wantBad || !wantBad && (string(got) != body[1:i] || p.i != i+1) {
+					t.Fatalf("%q: key %q at %d (declined %v), want %q at %d (declined %v)", body, got, p.i, p.bad, body[1:min(i, len(body))], i+1, wantBad)
+				}
+			}
+		}
+	}
+}
