@@ -463,7 +463,7 @@ func answerSize(n int) int { return n*5/2 + 64 }
 // A pool keeps at most two buffers, of at most maxPooled bytes each.
 type bufPool chan []byte
 
-const maxPooled = 48 << 20
+const maxPooled = 24 << 20
 
 var bodyPool, answerPool, partPool = make(bufPool, 2), make(bufPool, 2), make(bufPool, 2)
 
