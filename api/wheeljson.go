@@ -1,6 +1,8 @@
 package api
 
 import (
+	"encoding/binary"
+	"math/bits"
 	"strconv"
 
 	"wheelbench/service/geometry"
@@ -23,13 +25,24 @@ type wheelParser struct {
 	a   *arena
 }
 
-// arena hands out the decoded wheels' optional numbers from shared slabs,
-// so that a batch does not allocate each one. A slab is replaced, never
-// grown, so that the pointers stay valid.
+// arena hands out the decoded wheels' optional numbers and parts from
+// shared slabs, so that a batch does not allocate each one. A slab is
+// replaced, never grown, so that the pointers stay valid.
 type arena struct {
-	f []float64
-	n []int
+	f  []float64
+	n  []int
+	sp []geometry.Spoke
+	st []geometry.Stock
 }
+
+// reuse lets the next wheel overwrite the slabs: only once nothing decoded
+// so far is referenced any more.
+func (a *arena) reuse() {
+	a.f, a.n, a.sp, a.st = a.f[:0], a.n[:0], a.sp[:0], a.st[:0]
+}
+
+// drop forgets the slabs, leaving what was decoded to whatever holds it.
+func (a *arena) drop() { *a = arena{} }
 
 func (a *arena) float(v float64) *float64 {
 	if a == nil {
@@ -38,7 +51,7 @@ func (a *arena) float(v float64) *float64 {
 		return p
 	}
 	if len(a.f) == cap(a.f) {
-		a.f = make([]float64, 0, 4096)
+		a.f = make([]float64, 0, 64)
 	}
 	a.f = append(a.f, v)
 	return &a.f[len(a.f)-1]
@@ -51,16 +64,52 @@ func (a *arena) int(v int) *int {
 		return p
 	}
 	if len(a.n) == cap(a.n) {
-		a.n = make([]int, 0, 1024)
+		a.n = make([]int, 0, 16)
 	}
 	a.n = append(a.n, v)
 	return &a.n[len(a.n)-1]
 }
 
+func (a *arena) spoke() *geometry.Spoke {
+	if a == nil {
+		return new(geometry.Spoke)
+	}
+	if len(a.sp) == cap(a.sp) {
+		a.sp = make([]geometry.Spoke, 0, 4)
+	}
+	a.sp = append(a.sp, geometry.Spoke{})
+	return &a.sp[len(a.sp)-1]
+}
+
+func (a *arena) stock() *geometry.Stock {
+	if a == nil {
+		return new(geometry.Stock)
+	}
+	if len(a.st) == cap(a.st) {
+		a.st = make([]geometry.Stock, 0, 4)
+	}
+	a.st = append(a.st, geometry.Stock{})
+	return &a.st[len(a.st)-1]
+}
+
 // parseWheel decodes b into w; ok is false when the fast path declined (w
 // is then garbage and must be decoded again the slow way). a may be nil.
 func parseWheel(b []byte, w *geometry.Wheel, a *arena) (ok bool) {
-	p := wheelParser{b: b, a: a}
+	end, ok := parseWheelAt(b, 0, w, a)
+	if !ok {
+		return false
+	}
+	p := wheelParser{b: b, i: end}
+	p.ws()
+	return p.i == len(p.b)
+}
+
+// parseWheelAt decodes the object that starts at b[at] (after any
+// whitespace) and returns where it ends; what follows is not looked at.
+// It agrees with parseWheel(b[at:end]) and, like it, declines (ok = false)
+// whatever it does not take.
+func parseWheelAt(b []byte, at int, w *geometry.Wheel, a *arena) (end int, ok bool) {
+	p := wheelParser{b: b, i: at, a: a}
 	*w = geometry.Wheel{}
 	p.object(func(k []byte) bool {
 		switch string(k) {
@@ -83,20 +132,19 @@ func parseWheel(b []byte, w *geometry.Wheel, a *arena) (ok bool) {
 				return true
 			})
 		case "spoke":
-			w.Spoke = new(geometry.Spoke)
+			w.Spoke = p.a.spoke()
 			p.spoke(w.Spoke)
 		case "target_tension_n":
 			w.TargetTensionN = p.numPtr()
 		case "stock":
-			w.Stock = new(geometry.Stock)
+			w.Stock = p.a.stock()
 			p.stock(w.Stock)
 		default:
 			return false
 		}
 		return true
 	})
-	p.ws()
-	return !p.bad && p.i == len(p.b)
+	return p.i, !p.bad
 }
 
 func (p *wheelParser) hub(h *geometry.Hub) {
@@ -222,14 +270,11 @@ func (p *wheelParser) stock(s *geometry.Stock) {
 }
 
 func (p *wheelParser) ws() {
-	for p.i < len(p.b) {
-		switch p.b[p.i] {
-		case ' ', '\t', '\n', '\r':
-			p.i++
-		default:
-			return
-		}
+	b, i := p.b, p.i // locals: the loop then keeps them in registers
+	for i < len(b) && (b[i] == ' ' || b[i] == '\t' || b[i] == '\n' || b[i] == '\r') {
+		i++
 	}
+	p.i = i
 }
 
 // expect consumes c after whitespace.
@@ -319,22 +364,36 @@ func (p *wheelParser) key() []byte {
 	if !p.expect('"') {
 		return nil
 	}
-	start := p.i
-	for p.i < len(p.b) {
-		c := p.b[p.i]
-		switch {
-		case c == '"':
-			k := p.b[start:p.i]
-			p.i++
-			return k
-		case c == '\\' || c < 0x20 || c >= 0x80:
-			p.bad = true
-			return nil
+	b, start := p.b, p.i
+	i := start
+	for ; i+8 <= len(b); i += 8 { // eight bytes at a time
+		if m := specialBytes(binary.LittleEndian.Uint64(b[i:])); m != 0 {
+			i += bits.TrailingZeros64(m) / 8
+			break
 		}
-		p.i++
 	}
-	p.bad = true
+	for ; i < len(b); i++ {
+		if c := b[i]; c == '"' || c == '\\' || c < 0x20 || c >= 0x80 {
+			break
+		}
+	}
+	if i < len(b) && b[i] == '"' {
+		p.i = i + 1
+		return b[start:i]
+	}
+	p.bad = true // an escape, a control or non-ASCII byte, or no end
 	return nil
+}
+
+// specialBytes flags (high bit) the bytes of w, eight bytes of a key in
+// little-endian order, that end a plain key: '"', '\\', controls and
+// non-ASCII. Only the lowest flag is sure (a borrow can flag bytes above
+// a flagged one), and only the lowest is used.
+func specialBytes(w uint64) uint64 {
+	const lo, hi = 0x0101010101010101, 0x8080808080808080
+	q := w ^ ('"' * lo)
+	bs := w ^ ('\\' * lo)
+	return ((q-lo)&^q | (bs-lo)&^bs | (w-0x20*lo)&^w | w) & hi
 }
 
 // str is key as a string; the names a wheel usually holds are not copied.
@@ -427,6 +486,9 @@ func (p *wheelParser) number() float64 {
 	if p.bad {
 		return 0
 	}
+	if v, ok := exactDecimal(s); ok {
+		return v
+	}
 	v, err := strconv.ParseFloat(string(s), 64)
 	if err != nil { // out of range: encoding/json's error, not ours to word
 		p.bad = true
@@ -440,6 +502,16 @@ func (p *wheelParser) integer() int {
 		p.bad = true
 		return 0
 	}
+	if digits := bytesTrimMinus(s); len(digits) <= 18 { // no overflow
+		v := 0
+		for _, c := range digits {
+			v = v*10 + int(c-'0')
+		}
+		if len(digits) < len(s) {
+			v = -v
+		}
+		return v
+	}
 	v, err := strconv.ParseInt(string(s), 10, 0)
 	if err != nil {
 		p.bad = true
@@ -447,47 +519,52 @@ func (p *wheelParser) integer() int {
 	return int(v)
 }
 
+func bytesTrimMinus(s []byte) []byte {
+	if len(s) > 0 && s[0] == '-' {
+		return s[1:]
+	}
+	return s
+}
+
+// pow10 are the powers of ten that a float64 holds exactly.
+var pow10 = [...]float64{1, 1e1, 1e2, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8, 1e9, 1e10, 1e11, 1e12, 1e13, 1e14, 1e15}
+
+// exactDecimal is strconv.ParseFloat for a JSON number literal s (already
+// checked) without an exponent and with at most 15 digits: the digits as
+// an integer m < 2⁵³ and 10ᵏ are both exact float64s, so the one rounding
+// of m / 10ᵏ gives the float64 nearest the literal, as ParseFloat does.
+// ok is false for any other literal.
+func exactDecimal(s []byte) (v float64, ok bool) {
+	digits := bytesTrimMinus(s)
+	var m uint64
+	nd, frac, dot := 0, 0, false
+	for _, c := range digits {
+		switch {
+		case c >= '0' && c <= '9':
+			m = m*10 + uint64(c-'0')
+			nd++
+			if dot {
+				frac++
+			}
+		case c == '.':
+			dot = true
+		default: // an exponent
+			return 0, false
+		}
+	}
+	if nd > 15 {
+		return 0, false
+	}
+	v = float64(m) / pow10[frac]
+	if len(digits) < len(s) {
+		v = -v // -0 stays negative zero, as ParseFloat has it
+	}
+	return v, true
+}
+
 func (p *wheelParser) numPtr() *float64 { return p.a.float(p.number()) }
 
 func (p *wheelParser) intPtr() *int { return p.a.int(p.integer()) }
-
-// splitWheels finds the elements of a body {"wheels": [e0, e1, …]} without
-// decoding them. ok is false for any other shape (another member, escapes
-// in the member name, unbalanced brackets, …): the caller then decodes the
-// envelope with encoding/json, which also words the error.
-func splitWheels(b []byte) (items [][]byte, ok bool) {
-	p := wheelParser{b: b}
-	if !p.expect('{') || string(p.key()) != "wheels" || !p.expect(':') || !p.expect('[') {
-		return nil, false
-	}
-	items = make([][]byte, 0, len(b)/300)
-	if p.peek(']') {
-		p.i++
-	} else {
-		for {
-			p.ws()
-			start := p.i
-			if !p.skip() {
-				return nil, false
-			}
-			items = append(items, b[start:p.i])
-			p.ws()
-			if p.i < len(b) && b[p.i] == ',' {
-				p.i++
-				continue
-			}
-			if !p.expect(']') {
-				return nil, false
-			}
-			break
-		}
-	}
-	if !p.expect('}') {
-		return nil, false
-	}
-	p.ws()
-	return items, p.i == len(b)
-}
 
 // skip passes over one value: strings (escapes honoured) and brackets are
 // matched; what lies between is left to the element's own decoder. A

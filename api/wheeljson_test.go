@@ -2,11 +2,15 @@ package api
 
 import (
 	"encoding/json"
+	"fmt"
+	"math"
 	"math/rand/v2"
 	"reflect"
+	"strconv"
 	"strings"
 	"testing"
 
+	"wheelbench/service"
 	"wheelbench/service/geometry"
 )
 
@@ -166,4 +170,311 @@ func TestAppendResultMatches(t *testing.T) {
 	}
 	check(edge)
 	check(geometry.Result{})
+}
+
+// splitWheels is the batch's splitter in one serial pass, as the handler
+// had it before it cut the body into parts (scanWheels): it finds the
+// elements of a body {"wheels": [e0, e1, …]} without decoding them. ok is
+// false for any other shape (another member, escapes in the member name,
+// unbalanced brackets, …): the handler then decodes the envelope with
+// encoding/json, which also words the error. TestBatchAnswerAgrees holds
+// the handler to it.
+func splitWheels(b []byte) (items [][]byte, ok bool) {
+	p := wheelParser{b: b}
+	if !p.expect('{') || string(p.key()) != "wheels" || !p.expect(':') || !p.expect('[') {
+		return nil, false
+	}
+	items = make([][]byte, 0, len(b)/300)
+	if p.peek(']') {
+		p.i++
+	} else {
+		for {
+			p.ws()
+			start := p.i
+			if !p.skip() {
+				return nil, false
+			}
+			items = append(items, b[start:p.i])
+			p.ws()
+			if p.i < len(b) && b[p.i] == ',' {
+				p.i++
+				continue
+			}
+			if !p.expect(']') {
+				return nil, false
+			}
+			break
+		}
+	}
+	if !p.expect('}') {
+		return nil, false
+	}
+	p.ws()
+	return items, p.i == len(b)
+}
+
+// referenceBatch is the batch answer as the handler computed it before it
+// cut the body into parts, step by step and serially: split the envelope
+// (or let encoding/json do it), check the count, decode every wheel (fast
+// path, else encoding/json), refuse the body at its first wheel that is
+// not JSON, compute all, encode the slots in order.
+func referenceBatch(s *Server, body []byte, instance string) ([]byte, error) {
+	raws, ok := splitWheels(body)
+	if !ok {
+		var req batchRequest
+		if err := decodeBytes(body, &req); err != nil {
+			return nil, err
+		}
+		raws = nil
+		for _, r := range req.Wheels {
+			raws = append(raws, r)
+		}
+	}
+	if len(raws) == 0 || len(raws) > service.MaxBatchWheels {
+		return nil, &validationError{status: 400, detail: "The body does not match the API description: see errors.",
+			fields: []FieldProblem{{Pointer: "/wheels", Message: "must hold 1 to " + strconv.Itoa(service.MaxBatchWheels) + " wheels"}}}
+	}
+	wheels := make([]geometry.Wheel, len(raws))
+	decodeErr := make([]error, len(raws))
+	for i, raw := range raws {
+		if parseWheel(raw, &wheels[i], nil) {
+			continue
+		}
+		if !json.Valid(raw) {
+			return nil, &validationError{status: 400, detail: "The body could not be read: see errors.",
+				fields: []FieldProblem{{Pointer: "/wheels/" + strconv.Itoa(i), Message: "is not valid JSON"}}}
+		}
+		wheels[i] = geometry.Wheel{}
+		decodeErr[i] = decodeBytes(raw, &wheels[i])
+	}
+	items := s.svc.SpokeLengthsBatch(wheels)
+	b := []byte(`{"results":[`)
+	good := 0
+	for i := range raws {
+		if i > 0 {
+			b = append(b, ',')
+		}
+		err := decodeErr[i]
+		if err == nil {
+			err = items[i].Err
+		}
+		if err != nil {
+			j, err := json.Marshal(slotProblem(err, i, instance))
+			if err != nil {
+				return nil, err
+			}
+			b = append(b, j...)
+			continue
+		}
+		var err2 error
+		if b, err2 = appendResult(b, &items[i].Result); err2 != nil {
+			return nil, err2
+		}
+		good++
+	}
+	return fmt.Appendf(b, `],"succeeded":%d,"failed":%d}`+"\n", good, len(raws)-good), nil
+}
+
+// batchElements are wheels and other elements for TestBatchAnswerAgrees:
+// ones the fast path takes, ones it declines (escapes, repeats, case),
+// failing ones (unknown members, wrong types, impossible wheels), ones
+// that are JSON but no wheel, and strings that hold what a guessed cut
+// looks for ("},").
+var batchElements = append([]string{
+	`{"spoke_count":28,"hub":{"type":"straight_pull","left":{"pcd_mm":40,"center_to_flange_mm":30},"right":{"pcd_mm":40,"center_to_flange_mm":20}},"rim":{"erd_mm":540},"crosses":{"left":2,"right":2}}`,
+	`{"spoke_count":32,"hub":{"type":"j_b\u0065nd","left":{"pcd_mm":45,"center_to_flange_mm":36},"right":{"pcd_mm":45,"center_to_flange_mm":18}},"rim":{"erd_mm":599},"crosses":{"left":3,"right":3}}`,
+	`{"spoke_count":32,"Hub":{"type":"j_bend","left":{"pcd_mm":45,"center_to_flange_mm":36},"right":{"pcd_mm":45,"center_to_flange_mm":18}},"rim":{"erd_mm":599},"crosses":{"left":3,"right":3}}`,
+	`{"spoke_count":32,"hub":{"type":"},{","left":{"pcd_mm":45,"center_to_flange_mm":36},"right":{"pcd_mm":45,"center_to_flange_mm":18}},"rim":{"erd_mm":599},"crosses":{"left":3,"right":3}}`,
+	`{"spoke":{"material":"a\"},{\"b"}}`, `{"colour": "}, {"}`, `"},{"`, `"}, {\"x\": 1},"`,
+	`[{"a":1},{"b":2}]`, `{"wheels":[{},{}]}`, `5`, `null`, `true`, `{}`,
+	`{"spoke_count": 32, "spoke_count": 36}`, `{"rim": {"erd_mm": 1e999}}`,
+}, wheelSeeds[:3]...)
+
+// TestBatchAnswerAgrees: the batch answer, cut into any number of parts
+// at guessed places, is byte for byte the serial reference's answer (or
+// the same refusal), over random batches of the elements above and over
+// malformed bodies.
+func TestBatchAnswerAgrees(t *testing.T) {
+	s := &Server{svc: service.New(nil, nil)}
+	const instance = "/v1/spoke-lengths/batch"
+	rng := rand.New(rand.NewPCG(3, 4))
+	seps := []string{",", ", ", " ,\n", "\t,\r\n "}
+	var bodies []string
+	for range 300 {
+		n := 1 + rng.IntN(40)
+		var sb strings.Builder
+		sb.WriteString(`{"wheels": [`)
+		for i := range n {
+			if i > 0 {
+				sb.WriteString(seps[rng.IntN(len(seps))])
+			}
+			sb.WriteString(batchElements[rng.IntN(len(batchElements))])
+		}
+		sb.WriteString([]string{"]}", " ] } ", "]}\n"}[rng.IntN(3)])
+		bodies = append(bodies, sb.String())
+	}
+	plain := `{"wheels": [` + strings.Repeat(batchElements[0]+",", 50) + batchElements[0] + `]}`
+	bodies = append(bodies, plain,
+		`{"wheels": [{}, {"spoke_count": 32,,}, {}]}`, `{"wheels": [{},{},]}`, `{"wheels": [,{}]}`,
+		`{"wheels": []}`, `{"wheels": [{}]} x`, `{"wheels": [{}], "x": 1}`, `{"Wheels": [{}, {}]}`,
+		`{"wheels": [{}, {}], "wheels": [{}]}`, `{"wheels": [{}}`, `{"wheels": [{} {}]}`,
+		`{"wheels": [`+strings.Repeat(`{},`, service.MaxBatchWheels)+`{}]}`,
+		`{"wheels": [`+strings.Repeat(`{},`, service.MaxBatchWheels-1)+`{}]}`,
+		`{"wheels": [`+strings.Repeat(`{},`, 20)+`{"a":1,,}, 7]}`,
+	)
+	// A body whose middle is inside one wheel's butted sections: the guessed
+	// cut there is not between two wheels.
+	inside := `{"wheels": [{}, {"spoke":{"sections":[` + strings.Repeat(`{"length_mm":1,"diameter_mm":1.8},`, 40) +
+		`{"length_mm":1,"diameter_mm":1.8}]}}, {}]}`
+	bodies = append(bodies, inside)
+	answer := func(out []byte, err error) string {
+		if err != nil {
+			p, internal := toProblem(err)
+			j, _ := json.Marshal(p)
+			return fmt.Sprintf("refused (internal %v): %s", internal, j)
+		}
+		return string(out)
+	}
+	for _, body := range bodies {
+		want := answer(referenceBatch(s, []byte(body), instance))
+		for _, cpus := range []int{1, 2, 3, 7} {
+			for _, minPart := range []int{1, 40, minCutPart} {
+				out, err := s.batchAnswer([]byte(body), instance, cpus, minPart)
+				got := answer(out, err)
+				putBuf(answerPool, out)
+				if got != want {
+					t.Fatalf("%d parts of at least %d bytes, body %.300q:\n got %.500s\nwant %.500s", cpus, minPart, body, got, want)
+				}
+			}
+		}
+	}
+	// The plain body really is shared out, and the parts' guessed cuts hold.
+	parts, ok := s.batchFromBody([]byte(plain), instance, 3, 1)
+	if !ok || len(parts) != 3 {
+		t.Fatalf("the plain body went into %d parts (ok %v), want 3", len(parts), ok)
+	}
+	// The wrong guess is dropped: one part, scanned on past it.
+	from := len(`{"wheels": [`)
+	if cuts := cutWheels([]byte(inside), from, 2, 1); len(cuts) != 1 || !strings.HasPrefix(inside[cuts[0]:], `{"length_mm"`) {
+		t.Fatalf("cuts %v of the body with sections do not fall inside the sections", cuts)
+	}
+	if parts, ok := s.batchFromBody([]byte(inside), instance, 2, 1); !ok || len(parts) != 1 || parts[0].n != 3 {
+		t.Fatalf("the body with sections went into %d parts (ok %v), want 1 of 3 wheels", len(parts), ok)
+	}
+}
+
+// TestAppendFloatFixed: appendFloat writes what encoding/json writes for a
+// float64 (json.Marshal is the reference), over random bit patterns, short
+// decimals, integers, and the edges of the 'f' form's range.
+func TestAppendFloatFixed(t *testing.T) {
+	rng := rand.New(rand.NewPCG(5, 6))
+	var vals []float64
+	for range 200000 {
+		vals = append(vals, math.Float64frombits(rng.Uint64()))
+	}
+	for range 200000 {
+		// a few digits at a scale that puts the point anywhere
+		v := float64(rng.IntN(1_000_000)) * math.Pow(10, float64(rng.IntN(30)-12))
+		if rng.IntN(2) == 0 {
+			v = -v
+		}
+		vals = append(vals, v, math.Nextafter(v, 0), math.Nextafter(v, math.Inf(1)))
+	}
+	for e := -8; e <= 22; e++ {
+		p := math.Pow(10, float64(e))
+		vals = append(vals, p, -p, math.Nextafter(p, 0), math.Nextafter(p, 2*p), 1.5*p, 123456789*p)
+	}
+	vals = append(vals, 0, math.Copysign(0, -1), 1e21, math.Nextafter(1e21, 0), 1e-6, math.Nextafter(1e-6, 0),
+		math.MaxFloat64, math.SmallestNonzeroFloat64, 9007199254740993, 292.5450000260333, 1100, 67.5)
+	for _, v := range vals {
+		if math.IsNaN(v) || math.IsInf(v, 0) {
+			continue
+		}
+		want, err := json.Marshal(v)
+		if err != nil {
+			t.Fatal(err)
+		}
+		got, err := appendFloat(nil, v)
+		if err != nil || string(got) != string(want) {
+			t.Fatalf("%b: appendFloat %q (%v), encoding/json %q", v, got, err, want)
+		}
+	}
+}
+
+// TestNumberAgrees: the parser's numbers are strconv's, bit for bit (the
+// sign of zero included), over random literals of every length, with and
+// without fraction and exponent; its integers are strconv.ParseInt's.
+func TestNumberAgrees(t *testing.T) {
+	rng := rand.New(rand.NewPCG(7, 8))
+	digits := func(n int) string {
+		var sb strings.Builder
+		for range n {
+			sb.WriteByte(byte('0' + rng.IntN(10)))
+		}
+		return sb.String()
+	}
+	for range 300000 {
+		s := digits(1 + rng.IntN(20))
+		if len(s) > 1 && rng.IntN(4) > 0 {
+			s = strings.TrimLeft(s, "0")
+			if s == "" {
+				s = "0"
+			}
+		}
+		integer := true
+		if rng.IntN(3) > 0 {
+			s += "." + digits(1+rng.IntN(20))
+			integer = false
+		}
+		if rng.IntN(6) == 0 {
+			s += "e" + []string{"", "+", "-"}[rng.IntN(3)] + digits(1+rng.IntN(3))
+			integer = false
+		}
+		if rng.IntN(2) == 0 {
+			s = "-" + s
+		}
+		if u := strings.TrimPrefix(s, "-"); len(u) > 1 && u[0] == '0' && u[1] >= '0' && u[1] <= '9' {
+			continue // a leading zero: not a JSON number
+		}
+		p := wheelParser{b: []byte(s)}
+		got := p.number()
+		want, err := strconv.ParseFloat(s, 64)
+		if p.bad != (err != nil) || err == nil && math.Float64bits(got) != math.Float64bits(want) {
+			t.Fatalf("%s: parser %v (declined %v), strconv %v (%v)", s, got, p.bad, want, err)
+		}
+		if !integer {
+			continue
+		}
+		p = wheelParser{b: []byte(s)}
+		gi := p.integer()
+		wi, err := strconv.ParseInt(s, 10, 0)
+		if p.bad != (err != nil) || err == nil && int64(gi) != wi {
+			t.Fatalf("%s: parser %d (declined %v), strconv %d (%v)", s, gi, p.bad, wi, err)
+		}
+	}
+}
+
+// TestKeyAgrees: the word-at-a-time key scan ends a key where a byte loop
+// does, and declines the same keys, with the byte that ends it at every
+// offset.
+func TestKeyAgrees(t *testing.T) {
+	ends := []byte{'"', '\\', 0, 0x1f, 0x20, 0x7f, 0x80, 0xff, 'a', '!', '#', '[', ']'}
+	for n := range 40 {
+		for _, end := range ends {
+			for _, after := range []string{`"`, `x"`, ``} {
+				body := `"` + strings.Repeat("k", n) + string([]byte{end}) + after
+				p := wheelParser{b: []byte(body)}
+				got := p.key()
+				// the byte loop: the first byte that is not plain
+				i := 1
+				for i < len(body) && body[i] != '"' && body[i] != '\\' && body[i] >= 0x20 && body[i] < 0x80 {
+					i++
+				}
+				wantBad := i >= len(body) || body[i] != '"'
+				if p.bad != wantBad || !wantBad && (string(got) != body[1:i] || p.i != i+1) {
+					t.Fatalf("%q: key %q at %d (declined %v), want %q at %d (declined %v)", body, got, p.i, p.bad, body[1:min(i, len(body))], i+1, wantBad)
+				}
+			}
+		}
+	}
 }
