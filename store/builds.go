@@ -4,11 +4,13 @@ import (
 	"context"
 	"encoding/json"
 	"errors"
+	"time"
 
 	"github.com/google/uuid"
 	"github.com/jackc/pgx/v5"
 
 	"wheelbench/service"
+	"wheelbench/service/fit"
 )
 
 const buildColumns = `org_id, id, location_id, external_ref, status, spec, snapshot, notes, version, created_at, updated_at`
@@ -40,16 +42,31 @@ func (s *Store) CreateBuild(ctx context.Context, b service.Build) (err error) {
 	// One round trip: the two statements go as one batch, which PostgreSQL
 	// runs as one (implicit, or the request's) transaction.
 	var batch pgx.Batch
-	batch.Queue(q, b.OrgID, b.ID, b.LocationID, b.ExternalRef, string(b.Status), []byte(b.Spec), snap, b.Notes, b.Version, b.CreatedAt, b.UpdatedAt)
+	// UUIDs go as [16]byte: pgx encodes those straight to binary, while
+	// uuid.UUID's driver.Valuer (a string) first fails the binary encoding,
+	// builds an error, and is parsed back.
+	batch.Queue(q, [16]byte(b.OrgID), [16]byte(b.ID), [16]byte(b.LocationID), b.ExternalRef, string(b.Status), []byte(b.Spec), snap, b.Notes, b.Version, b.CreatedAt, b.UpdatedAt)
 	batch.Queue(change, args...)
 	return s.sendBatch(ctx, &batch)
 }
 
 // buildSummary is a build's change-feed payload: everything but the
-// (large) snapshot, which the resource itself serves.
-func buildSummary(b service.Build) map[string]any {
-	return map[string]any{"id": b.ID, "location_id": b.LocationID, "external_ref": b.ExternalRef, "status": b.Status,
-		"verdict": b.Snapshot.Compatibility.Verdict, "notes": b.Notes, "updated_at": b.UpdatedAt}
+// (large) snapshot, which the resource itself serves. Its fields are in
+// the order of their JSON names, the order encoding/json gives a map, so
+// the bytes (kept as such in webhook bodies) are those of the map form.
+type buildSummaryJSON struct {
+	ExternalRef string              `json:"external_ref"`
+	ID          uuid.UUID           `json:"id"`
+	LocationID  uuid.UUID           `json:"location_id"`
+	Notes       string              `json:"notes"`
+	Status      service.BuildStatus `json:"status"`
+	UpdatedAt   time.Time           `json:"updated_at"`
+	Verdict     fit.Verdict         `json:"verdict"`
+}
+
+func buildSummary(b service.Build) buildSummaryJSON {
+	return buildSummaryJSON{ID: b.ID, LocationID: b.LocationID, ExternalRef: b.ExternalRef, Status: b.Status,
+		Verdict: b.Snapshot.Compatibility.Verdict, Notes: b.Notes, UpdatedAt: b.UpdatedAt}
 }
 
 // GetBuild reads one of orgID's builds.

@@ -8,6 +8,7 @@ import (
 
 	"github.com/google/uuid"
 	"github.com/jackc/pgx/v5"
+	"github.com/jackc/pgx/v5/pgtype"
 
 	"wheelbench/service"
 )
@@ -50,7 +51,12 @@ func changeStatement(orgID uuid.UUID, c service.Change) (string, []any, error) {
 	  SELECT org_id, id, $7, $2, $8 FROM webhook_endpoints
 	  WHERE org_id = $1 AND active
 	    AND ($2 = ANY (events) OR split_part($2, '.', 1) || '.*' = ANY (events) OR '*' = ANY (events))`
-	return q, []any{orgID, c.Type, c.ResourceID, c.LocationID, data, at, id, body}, nil
+	// UUIDs as [16]byte and pgtype.UUID: see CreateBuild.
+	loc := pgtype.UUID{}
+	if c.LocationID != nil {
+		loc = pgtype.UUID{Bytes: *c.LocationID, Valid: true}
+	}
+	return q, []any{[16]byte(orgID), c.Type, [16]byte(c.ResourceID), loc, data, at, id, body}, nil
 }
 
 // ListChanges implements service.Store. Rows are served in (txid, seq)
