@@ -29,7 +29,26 @@ func (s *Server) createBuild(c echo.Context) error {
 	}
 	c.Response().Header().Set("ETag", b.ETag())
 	c.Response().Header().Set("Location", "/v1/builds/"+b.ID.String())
-	return c.JSON(http.StatusCreated, b)
+	if b.SnapshotJSON == nil {
+		return c.JSON(http.StatusCreated, b)
+	}
+	return c.JSON(http.StatusCreated, createdBuildJSON{ID: b.ID, LocationID: b.LocationID, ExternalRef: b.ExternalRef,
+		Status: b.Status, Spec: b.Spec, Snapshot: b.SnapshotJSON, Notes: b.Notes, CreatedAt: b.CreatedAt, UpdatedAt: b.UpdatedAt})
+}
+
+// createdBuildJSON is service.Build as encoding/json writes it — the same
+// members in the same order — with the snapshot as the bytes the service
+// already marshalled (and stored) instead of the struct encoded again.
+type createdBuildJSON struct {
+	ID          uuid.UUID           `json:"id"`
+	LocationID  uuid.UUID           `json:"location_id"`
+	ExternalRef string              `json:"external_ref"`
+	Status      service.BuildStatus `json:"status"`
+	Spec        json.RawMessage     `json:"spec"`
+	Snapshot    json.RawMessage     `json:"snapshot"`
+	Notes       string              `json:"notes"`
+	CreatedAt   time.Time           `json:"created_at"`
+	UpdatedAt   time.Time           `json:"updated_at"`
 }
 
 func (s *Server) getBuild(c echo.Context) error {

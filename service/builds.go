@@ -60,10 +60,14 @@ type Build struct {
 	Status      BuildStatus     `json:"status"`
 	Spec        json.RawMessage `json:"spec"`
 	Snapshot    BuildSnapshot   `json:"snapshot"`
-	Notes       string          `json:"notes"`
-	Version     int64           `json:"-"`
-	CreatedAt   time.Time       `json:"created_at"`
-	UpdatedAt   time.Time       `json:"updated_at"`
+	// SnapshotJSON, when set (CreateBuild sets it), is json.Marshal of
+	// Snapshot, so that the store and the response use those bytes rather
+	// than encode the snapshot again.
+	SnapshotJSON json.RawMessage `json:"-"`
+	Notes        string          `json:"notes"`
+	Version      int64           `json:"-"`
+	CreatedAt    time.Time       `json:"created_at"`
+	UpdatedAt    time.Time       `json:"updated_at"`
 }
 
 // ETag is the build's entity tag.
@@ -390,9 +394,13 @@ func (s *Service) CreateBuild(ctx context.Context, p Principal, in BuildInput) (
 	if snap.Cautions == nil {
 		snap.Cautions = []string{}
 	}
+	snapJSON, err := json.Marshal(snap)
+	if err != nil {
+		return Build{}, err
+	}
 	now := s.now().UTC()
 	b := Build{ID: uuid.Must(uuid.NewV7()), OrgID: p.OrgID, LocationID: in.LocationID, ExternalRef: in.ExternalRef,
-		Status: BuildDraft, Spec: in.Spec, Snapshot: snap, Version: 1, CreatedAt: now, UpdatedAt: now}
+		Status: BuildDraft, Spec: in.Spec, Snapshot: snap, SnapshotJSON: snapJSON, Version: 1, CreatedAt: now, UpdatedAt: now}
 	if err := s.store.CreateBuild(ctx, b); err != nil {
 		return Build{}, err
 	}

@@ -30,9 +30,11 @@ func scanBuild(row pgx.CollectableRow) (service.Build, error) {
 // CreateBuild inserts b and its build.created change.
 func (s *Store) CreateBuild(ctx context.Context, b service.Build) (err error) {
 	defer wrap(&err, "create build")
-	snap, err := json.Marshal(b.Snapshot)
-	if err != nil {
-		return err
+	snap := []byte(b.SnapshotJSON)
+	if snap == nil {
+		if snap, err = json.Marshal(b.Snapshot); err != nil {
+			return err
+		}
 	}
 	const q = `INSERT INTO builds (` + buildColumns + `) VALUES ($1, $2, $3, $4, $5, $6, $7, $8, $9, $10, $11)`
 	change, args, err := changeStatement(b.OrgID, service.Change{Type: "build.created", ResourceID: b.ID, LocationID: &b.LocationID, Data: buildSummary(b)})
