@@ -27,9 +27,10 @@ func processCPU(b *testing.B) time.Duration {
 // TestCreateBuildResponseIsTheBuild: POST /v1/builds writes the snapshot
 // from bytes the service marshalled once; the body must be exactly what
 // encoding/json makes of the build it describes (decoded from that body and
-// encoded again as the handler once did, with echo's trailing newline), for
-// an inline spec with whitespace and a catalog spec at a location whose
-// tensiometer is calibrated (stock from the location, target readings).
+// encoded again as the handler once did, with echo's trailing newline, and
+// indented for ?pretty), for an inline spec with whitespace and a catalog
+// spec at a location whose tensiometer is calibrated (stock from the
+// location, target readings).
 func TestCreateBuildResponseIsTheBuild(t *testing.T) {
 	e := newEnv(t)
 	w := e.keyA[service.RoleWrite]
@@ -45,22 +46,26 @@ func TestCreateBuildResponseIsTheBuild(t *testing.T) {
 	}
 	catalog, _ := json.Marshal(s.spec())
 	for _, c := range []struct {
-		name string
-		body string
+		name, query, body string
 	}{
-		{"inline", `{"location_id": "` + s.loc.String() + `", "external_ref": "<A&B>", "spec": ` + spaced.String() + `}`},
-		{"catalog", `{"location_id":"` + s.loc.String() + `","spec":` + string(catalog) + `}`},
+		{"inline", "", `{"location_id": "` + s.loc.String() + `", "external_ref": "<A&B>", "spec": ` + spaced.String() + `}`},
+		{"catalog", "", `{"location_id":"` + s.loc.String() + `","spec":` + string(catalog) + `}`},
+		{"catalog, pretty", "?pretty", `{"location_id":"` + s.loc.String() + `","spec":` + string(catalog) + `}`},
 	} {
-		r := e.want(e.do("POST", "/v1/builds", w, c.body), 201)
+		r := e.want(e.do("POST", "/v1/builds"+c.query, w, c.body), 201)
 		var b service.Build
 		if err := json.Unmarshal(r.body, &b); err != nil {
 			t.Fatal(err)
 		}
-		if c.name == "catalog" && (b.Snapshot.TargetReadings == nil || b.Snapshot.StockSource != "location_stock") {
+		if c.name != "inline" && (b.Snapshot.TargetReadings == nil || b.Snapshot.StockSource != "location_stock") {
 			t.Fatalf("%s: expected target readings and location stock: %s", c.name, r.body)
 		}
 		var again bytes.Buffer
-		if err := json.NewEncoder(&again).Encode(b); err != nil {
+		enc := json.NewEncoder(&again)
+		if c.query != "" {
+			enc.SetIndent("", "  ") // echo's indent for ?pretty
+		}
+		if err := enc.Encode(b); err != nil {
 			t.Fatal(err)
 		}
 		if !bytes.Equal(again.Bytes(), r.body) {
