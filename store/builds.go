@@ -36,21 +36,27 @@ func (s *Store) CreateBuild(ctx context.Context, b service.Build) (err error) {
 			return err
 		}
 	}
-	const q = `INSERT INTO builds (` + buildColumns + `) VALUES ($1, $2, $3, $4, $5, $6, $7, $8, $9, $10, $11)`
-	change, args, err := changeStatement(b.OrgID, service.Change{Type: "build.created", ResourceID: b.ID, LocationID: &b.LocationID, Data: buildSummary(b)})
+	args, err := changeArgs(b.OrgID, service.Change{Type: "build.created", ResourceID: b.ID, LocationID: &b.LocationID, Data: buildSummary(b)})
 	if err != nil {
 		return err
 	}
-	// One round trip: the two statements go as one batch, which PostgreSQL
-	// runs as one (implicit, or the request's) transaction.
-	var batch pgx.Batch
 	// UUIDs go as [16]byte: pgx encodes those straight to binary, while
 	// uuid.UUID's driver.Valuer (a string) first fails the binary encoding,
 	// builds an error, and is parsed back.
-	batch.Queue(q, [16]byte(b.OrgID), [16]byte(b.ID), [16]byte(b.LocationID), b.ExternalRef, string(b.Status), []byte(b.Spec), snap, b.Notes, b.Version, b.CreatedAt, b.UpdatedAt)
-	batch.Queue(change, args...)
-	return s.sendBatch(ctx, &batch)
+	_, err = s.db(ctx).Exec(ctx, createBuildQuery, [16]byte(b.OrgID), [16]byte(b.ID), [16]byte(b.LocationID), b.ExternalRef, string(b.Status),
+		[]byte(b.Spec), snap, b.Notes, b.Version, b.CreatedAt, b.UpdatedAt,
+		args[1], args[4], args[5], args[6], args[7])
+	return err
 }
+
+// createBuildQuery inserts a build and its build.created change (feed row
+// and outbox rows) in one statement: one round trip, one transaction (the
+// request's, when ctx carries one), and for PostgreSQL one statement to run
+// rather than two. The change's organisation, resource and location are
+// the build's $1, $2 and $3.
+var createBuildQuery = changeSQL(`build AS (
+	    INSERT INTO builds (`+buildColumns+`) VALUES ($1, $2, $3, $4, $5, $6, $7, $8, $9, $10, $11)),
+	  `, changeParams{1, 12, 2, 3, 13, 14, 15, 16})
 
 // buildSummary is a build's change-feed payload: everything but the
 // (large) snapshot, which the resource itself serves. Its fields are in
