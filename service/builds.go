@@ -6,6 +6,7 @@ import (
 	"encoding/json"
 	"errors"
 	"fmt"
+	"strconv"
 	"strings"
 	"time"
 	"unicode/utf8"
@@ -59,10 +60,14 @@ type Build struct {
 	Status      BuildStatus     `json:"status"`
 	Spec        json.RawMessage `json:"spec"`
 	Snapshot    BuildSnapshot   `json:"snapshot"`
-	Notes       string          `json:"notes"`
-	Version     int64           `json:"-"`
-	CreatedAt   time.Time       `json:"created_at"`
-	UpdatedAt   time.Time       `json:"updated_at"`
+	// SnapshotJSON, when set (CreateBuild sets it), is json.Marshal of
+	// Snapshot, so that the store and the response use those bytes rather
+	// than encode the snapshot again.
+	SnapshotJSON json.RawMessage `json:"-"`
+	Notes        string          `json:"notes"`
+	Version      int64           `json:"-"`
+	CreatedAt    time.Time       `json:"created_at"`
+	UpdatedAt    time.Time       `json:"updated_at"`
 }
 
 // ETag is the build's entity tag.
@@ -270,18 +275,9 @@ func (s *Service) resolveSpec(ctx context.Context, orgID, locationID uuid.UUID, 
 	if len(bytes.TrimSpace(washers)) > 0 {
 		obj["washers"] = washers
 	}
-	obj["spoke_count"], _ = json.Marshal(spec.SpokeCount)
-	obj["crosses"] = spec.Crosses
-	obj["target_tension_n"], _ = json.Marshal(spec.TargetTensionN)
-	if spec.FrameSpacingMM != nil {
-		obj["frame_spacing_mm"], _ = json.Marshal(*spec.FrameSpacingMM)
-	}
-	merged, _ := json.Marshal(obj)
-	var in CompatibilityInput
-	dec = json.NewDecoder(bytes.NewReader(merged))
-	dec.DisallowUnknownFields()
-	if err := dec.Decode(&in.Input); err != nil {
-		return CompatibilityInput{}, parts, "", Invalid("/spec", "not a valid build spec: %s", strings.TrimPrefix(err.Error(), "json: "))
+	in, err := decodeResolved(spec, obj)
+	if err != nil {
+		return CompatibilityInput{}, parts, "", err
 	}
 	source := "none"
 	if spec.Stock != nil {
@@ -302,6 +298,70 @@ func (s *Service) resolveSpec(ctx context.Context, orgID, locationID uuid.UUID, 
 		}
 	}
 	return in, parts, source, nil
+}
+
+// resolvedParts are the members of a resolved spec besides the parts, in
+// the order encoding/json writes a map's keys.
+var resolvedParts = [...]string{"hub", "nipple", "rim", "spoke", "tyre", "washers"}
+
+// decodeResolved decodes the compatibility input that the parts in obj
+// (each one JSON value, by its member name) and spec's scalars make, as if
+// they were one object. It writes that object by appending the parts' bytes
+// as they are, rather than marshalling a map (which would re-encode and
+// compact every part), and decodes it once. Should that fail, the object
+// is built and decoded the old way, whose error — and, were it ever to
+// disagree, result — is the one returned.
+func decodeResolved(spec BuildSpec, obj map[string]json.RawMessage) (CompatibilityInput, error) {
+	n := 128 + len(spec.Crosses)
+	for _, v := range obj {
+		n += len(v) + 16
+	}
+	doc := make([]byte, 0, n)
+	doc = append(doc, '{')
+	for _, k := range resolvedParts {
+		if v, ok := obj[k]; ok {
+			doc = append(doc, '"')
+			doc = append(doc, k...)
+			doc = append(doc, `":`...)
+			doc = append(doc, v...)
+			doc = append(doc, ',')
+		}
+	}
+	doc = append(doc, `"crosses":`...)
+	if len(spec.Crosses) == 0 {
+		doc = append(doc, "null"...)
+	} else {
+		doc = append(doc, spec.Crosses...)
+	}
+	if spec.FrameSpacingMM != nil {
+		doc = append(doc, `,"frame_spacing_mm":`...)
+		doc = strconv.AppendFloat(doc, *spec.FrameSpacingMM, 'g', -1, 64)
+	}
+	doc = append(doc, `,"spoke_count":`...)
+	doc = strconv.AppendInt(doc, int64(spec.SpokeCount), 10)
+	doc = append(doc, `,"target_tension_n":`...)
+	doc = strconv.AppendFloat(doc, spec.TargetTensionN, 'g', -1, 64)
+	doc = append(doc, '}')
+	var in CompatibilityInput
+	dec := json.NewDecoder(bytes.NewReader(doc))
+	dec.DisallowUnknownFields()
+	if err := dec.Decode(&in.Input); err == nil {
+		return in, nil
+	}
+	obj["crosses"] = spec.Crosses
+	obj["spoke_count"], _ = json.Marshal(spec.SpokeCount)
+	obj["target_tension_n"], _ = json.Marshal(spec.TargetTensionN)
+	if spec.FrameSpacingMM != nil {
+		obj["frame_spacing_mm"], _ = json.Marshal(*spec.FrameSpacingMM)
+	}
+	merged, _ := json.Marshal(obj)
+	in = CompatibilityInput{}
+	dec = json.NewDecoder(bytes.NewReader(merged))
+	dec.DisallowUnknownFields()
+	if err := dec.Decode(&in.Input); err != nil {
+		return CompatibilityInput{}, Invalid("/spec", "not a valid build spec: %s", strings.TrimPrefix(err.Error(), "json: "))
+	}
+	return in, nil
 }
 
 // CreateBuild computes a build's snapshot — parts resolved, fit verdict,
@@ -334,9 +394,13 @@ func (s *Service) CreateBuild(ctx context.Context, p Principal, in BuildInput) (
 	if snap.Cautions == nil {
 		snap.Cautions = []string{}
 	}
+	snapJSON, err := json.Marshal(snap)
+	if err != nil {
+		return Build{}, err
+	}
 	now := s.now().UTC()
 	b := Build{ID: uuid.Must(uuid.NewV7()), OrgID: p.OrgID, LocationID: in.LocationID, ExternalRef: in.ExternalRef,
-		Status: BuildDraft, Spec: in.Spec, Snapshot: snap, Version: 1, CreatedAt: now, UpdatedAt: now}
+		Status: BuildDraft, Spec: in.Spec, Snapshot: snap, SnapshotJSON: snapJSON, Version: 1, CreatedAt: now, UpdatedAt: now}
 	if err := s.store.CreateBuild(ctx, b); err != nil {
 		return Build{}, err
 	}

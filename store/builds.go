@@ -4,11 +4,13 @@ import (
 	"context"
 	"encoding/json"
 	"errors"
+	"time"
 
 	"github.com/google/uuid"
 	"github.com/jackc/pgx/v5"
 
 	"wheelbench/service"
+	"wheelbench/service/fit"
 )
 
 const buildColumns = `org_id, id, location_id, external_ref, status, spec, snapshot, notes, version, created_at, updated_at`
@@ -28,28 +30,51 @@ func scanBuild(row pgx.CollectableRow) (service.Build, error) {
 // CreateBuild inserts b and its build.created change.
 func (s *Store) CreateBuild(ctx context.Context, b service.Build) (err error) {
 	defer wrap(&err, "create build")
-	snap, err := json.Marshal(b.Snapshot)
+	snap := []byte(b.SnapshotJSON)
+	if snap == nil {
+		if snap, err = json.Marshal(b.Snapshot); err != nil {
+			return err
+		}
+	}
+	args, err := changeArgs(b.OrgID, service.Change{Type: "build.created", ResourceID: b.ID, LocationID: &b.LocationID, Data: buildSummary(b)})
 	if err != nil {
 		return err
 	}
-	const q = `INSERT INTO builds (` + buildColumns + `) VALUES ($1, $2, $3, $4, $5, $6, $7, $8, $9, $10, $11)`
-	change, args, err := changeStatement(b.OrgID, service.Change{Type: "build.created", ResourceID: b.ID, LocationID: &b.LocationID, Data: buildSummary(b)})
-	if err != nil {
-		return err
-	}
-	// One round trip: the two statements go as one batch, which PostgreSQL
-	// runs as one (implicit, or the request's) transaction.
-	var batch pgx.Batch
-	batch.Queue(q, b.OrgID, b.ID, b.LocationID, b.ExternalRef, string(b.Status), []byte(b.Spec), snap, b.Notes, b.Version, b.CreatedAt, b.UpdatedAt)
-	batch.Queue(change, args...)
-	return s.sendBatch(ctx, &batch)
+	// UUIDs go as [16]byte: pgx encodes those straight to binary, while
+	// uuid.UUID's driver.Valuer (a string) first fails the binary encoding,
+	// builds an error, and is parsed back.
+	_, err = s.db(ctx).Exec(ctx, createBuildQuery, [16]byte(b.OrgID), [16]byte(b.ID), [16]byte(b.LocationID), b.ExternalRef, string(b.Status),
+		[]byte(b.Spec), snap, b.Notes, b.Version, b.CreatedAt, b.UpdatedAt,
+		args[1], args[4], args[5], args[6], args[7])
+	return err
 }
 
+// createBuildQuery inserts a build and its build.created change (feed row
+// and outbox rows) in one statement: one round trip, one transaction (the
+// request's, when ctx carries one), and for PostgreSQL one statement to run
+// rather than two. The change's organisation, resource and location are
+// the build's $1, $2 and $3.
+var createBuildQuery = changeSQL(`build AS (
+	    INSERT INTO builds (`+buildColumns+`) VALUES ($1, $2, $3, $4, $5, $6, $7, $8, $9, $10, $11)),
+	  `, changeParams{1, 12, 2, 3, 13, 14, 15, 16})
+
 // buildSummary is a build's change-feed payload: everything but the
-// (large) snapshot, which the resource itself serves.
-func buildSummary(b service.Build) map[string]any {
-	return map[string]any{"id": b.ID, "location_id": b.LocationID, "external_ref": b.ExternalRef, "status": b.Status,
-		"verdict": b.Snapshot.Compatibility.Verdict, "notes": b.Notes, "updated_at": b.UpdatedAt}
+// (large) snapshot, which the resource itself serves. Its fields are in
+// the order of their JSON names, the order encoding/json gives a map, so
+// the bytes (kept as such in webhook bodies) are those of the map form.
+type buildSummaryJSON struct {
+	ExternalRef string              `json:"external_ref"`
+	ID          uuid.UUID           `json:"id"`
+	LocationID  uuid.UUID           `json:"location_id"`
+	Notes       string              `json:"notes"`
+	Status      service.BuildStatus `json:"status"`
+	UpdatedAt   time.Time           `json:"updated_at"`
+	Verdict     fit.Verdict         `json:"verdict"`
+}
+
+func buildSummary(b service.Build) buildSummaryJSON {
+	return buildSummaryJSON{ID: b.ID, LocationID: b.LocationID, ExternalRef: b.ExternalRef, Status: b.Status,
+		Verdict: b.Snapshot.Compatibility.Verdict, Notes: b.Notes, UpdatedAt: b.UpdatedAt}
 }
 
 // GetBuild reads one of orgID's builds.

@@ -3,11 +3,13 @@ package store
 import (
 	"context"
 	"encoding/json"
+	"fmt"
 	"strconv"
 	"time"
 
 	"github.com/google/uuid"
 	"github.com/jackc/pgx/v5"
+	"github.com/jackc/pgx/v5/pgtype"
 
 	"wheelbench/service"
 )
@@ -29,28 +31,57 @@ func recordChange(ctx context.Context, q querier, orgID uuid.UUID, c service.Cha
 // type, queues a webhook delivery (the outbox), so that both commit with
 // the change. Run it with recordChange, or queue it in a pgx.Batch.
 func changeStatement(orgID uuid.UUID, c service.Change) (string, []any, error) {
-	data, err := json.Marshal(c.Data)
+	args, err := changeArgs(orgID, c)
 	if err != nil {
 		return "", nil, err
+	}
+	return changeQuery, args[:], nil
+}
+
+// changeParams numbers a change statement's parameters: organisation,
+// type, resource, location, data, occurred_at, event id, webhook body (the
+// order of changeArgs).
+type changeParams [8]int
+
+// changeQuery is changeStatement's statement.
+var changeQuery = changeSQL("", changeParams{1, 2, 3, 4, 5, 6, 7, 8})
+
+// changeSQL writes the change statement with its parameters numbered by p,
+// after the common table expressions in with (each "name AS (...), "), so
+// that another insert can go in the same statement.
+func changeSQL(with string, p changeParams) string {
+	return fmt.Sprintf(`WITH %schange AS (
+	    INSERT INTO changes (org_id, type, resource_id, location_id, data, occurred_at) VALUES ($%[2]d, $%[3]d, $%[4]d, $%[5]d, $%[6]d, $%[7]d))
+	  INSERT INTO webhook_deliveries (org_id, endpoint_id, event_id, type, body)
+	  SELECT org_id, id, $%[8]d, $%[3]d, $%[9]d FROM webhook_endpoints
+	  WHERE org_id = $%[2]d AND active
+	    AND ($%[3]d = ANY (events) OR split_part($%[3]d, '.', 1) || '.*' = ANY (events) OR '*' = ANY (events))`,
+		with, p[0], p[1], p[2], p[3], p[4], p[5], p[6], p[7])
+}
+
+// changeArgs are change c's parameters, in changeParams' order.
+func changeArgs(orgID uuid.UUID, c service.Change) ([8]any, error) {
+	data, err := json.Marshal(c.Data)
+	if err != nil {
+		return [8]any{}, err
 	}
 	// Microseconds: what timestamptz keeps, so feed and webhook agree.
 	at := time.Now().UTC().Truncate(time.Microsecond)
 	id, err := service.NewWebhookEventID()
 	if err != nil {
-		return "", nil, err
+		return [8]any{}, err
 	}
 	body, err := json.Marshal(service.WebhookEvent{ID: id, Type: c.Type, OccurredAt: at,
 		ResourceID: c.ResourceID, LocationID: c.LocationID, Data: data})
 	if err != nil {
-		return "", nil, err
+		return [8]any{}, err
 	}
-	const q = `WITH change AS (
-	    INSERT INTO changes (org_id, type, resource_id, location_id, data, occurred_at) VALUES ($1, $2, $3, $4, $5, $6))
-	  INSERT INTO webhook_deliveries (org_id, endpoint_id, event_id, type, body)
-	  SELECT org_id, id, $7, $2, $8 FROM webhook_endpoints
-	  WHERE org_id = $1 AND active
-	    AND ($2 = ANY (events) OR split_part($2, '.', 1) || '.*' = ANY (events) OR '*' = ANY (events))`
-	return q, []any{orgID, c.Type, c.ResourceID, c.LocationID, data, at, id, body}, nil
+	// UUIDs as [16]byte and pgtype.UUID: see CreateBuild.
+	loc := pgtype.UUID{}
+	if c.LocationID != nil {
+		loc = pgtype.UUID{Bytes: *c.LocationID, Valid: true}
+	}
+	return [8]any{[16]byte(orgID), c.Type, [16]byte(c.ResourceID), loc, data, at, id, body}, nil
 }
 
 // ListChanges implements service.Store. Rows are served in (txid, seq)

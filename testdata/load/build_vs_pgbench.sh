@@ -11,11 +11,12 @@ ADDR=${ADDR:-127.0.0.1:18099}
 CONNS=${CONNS:-8}
 DUR=${DUR:-10}
 ROUNDS=${ROUNDS:-2}
+BIN=${BIN:-/tmp/wheelbench-load}
 psql -h 127.0.0.1 -U postgres -qc "DROP DATABASE IF EXISTS $DB" -c "CREATE DATABASE $DB"
 export WHEELBENCH_DATABASE_URL="host=127.0.0.1 user=postgres dbname=$DB"
-go build -o /tmp/wheelbench-load ./cmd/wheelbench
-KEY=$(/tmp/wheelbench-load admin create-org --name "Load test shop" | sed -n 's/^API key: //p')
-WHEELBENCH_ADDR=$ADDR WHEELBENCH_LOG_LEVEL=warn /tmp/wheelbench-load serve &
+go build -o "$BIN" ./cmd/wheelbench
+KEY=$("$BIN" admin create-org --name "Load test shop" | sed -n 's/^API key: //p')
+WHEELBENCH_ADDR=$ADDR WHEELBENCH_LOG_LEVEL=warn "$BIN" serve &
 PID=$!
 trap 'kill $PID 2>/dev/null || true' EXIT
 for _ in $(seq 1 50); do curl -fs "http://$ADDR/readyz" >/dev/null && break; sleep 0.2; done
@@ -24,16 +25,23 @@ LOCATION=$(curl -fs -H "Authorization: Bearer $KEY" -H 'Content-Type: applicatio
 psql -h 127.0.0.1 -U postgres -d "$DB" -qc "CREATE TABLE load_rows (id bigserial PRIMARY KEY, payload text NOT NULL, created_at timestamptz NOT NULL DEFAULT now())"
 cpu() { awk '{print $14 + $15}' "/proc/$PID/stat"; }   # server user+system CPU, clock ticks
 TICK=$(getconf CLK_TCK)
+# Whole-machine CPU steal and I/O wait over a round, in % of all CPU time
+# (/proc/stat's first line: user nice system idle iowait irq softirq steal).
+machine() { awk '/^cpu / {print $2+$3+$4+$5+$6+$7+$8+$9, $6, $9}' /proc/stat; }
+echo "$(uptime)"
 for r in $(seq 1 "$ROUNDS"); do
   before=$(cpu)
+  read -r m0 w0 s0 < <(machine)
   out=$(KEY=$KEY LOCATION=$LOCATION wrk -t2 -c"$CONNS" -d"${DUR}s" -s testdata/load/build_create.lua "http://$ADDR")
   after=$(cpu)
   rps=$(echo "$out" | sed -n 's/^Requests\/sec: *//p')
   reqs=$(echo "$out" | sed -n 's/^ *\([0-9]*\) requests in.*/\1/p')
   non2xx=$(echo "$out" | sed -n 's/.*Non-2xx or 3xx responses: *//p')
+  read -r m1 w1 s1 < <(machine)
   tps=$(pgbench -h 127.0.0.1 -U postgres -n -f testdata/load/insert.sql -c "$CONNS" -j 2 -T "$DUR" "$DB" 2>/dev/null | sed -n 's/^tps = \([0-9.]*\).*/\1/p')
-  awk -v r="$r" -v rps="$rps" -v tps="$tps" -v reqs="$reqs" -v ticks=$((after - before)) -v tick="$TICK" -v bad="${non2xx:-0}" 'BEGIN {
-    printf "round %s: builds %.0f/s (%d requests, %s non-2xx, server CPU %.0f us/build), pgbench INSERT %.0f tps, ratio %.2f\n",
-      r, rps, reqs, bad, ticks / tick / reqs * 1e6, tps, rps / tps }'
+  awk -v r="$r" -v rps="$rps" -v tps="$tps" -v reqs="$reqs" -v ticks=$((after - before)) -v tick="$TICK" -v bad="${non2xx:-0}" \
+    -v steal=$(( (s1 - s0) * 100 / (m1 - m0 + 1) )) -v iowait=$(( (w1 - w0) * 100 / (m1 - m0 + 1) )) 'BEGIN {
+    printf "round %s: builds %.0f/s (%d requests, %s non-2xx, server CPU %.0f us/build, steal %d%%, iowait %d%%), pgbench INSERT %.0f tps, ratio %.2f\n",
+      r, rps, reqs, bad, ticks / tick / reqs * 1e6, steal, iowait, tps, rps / tps }'
 done
 psql -h 127.0.0.1 -U postgres -d "$DB" -Atc "SELECT 'builds stored: ' || count(*) FROM builds"
