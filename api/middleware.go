@@ -84,11 +84,16 @@ func (s *Server) validateRequest(next echo.HandlerFunc) echo.HandlerFunc {
 		if err != nil {
 			return echo.ErrNotFound
 		}
-		o := opts
+		o, vreq := opts, req
 		if r, ok := s.routeFor(req.Method, c.Path()); ok && (r.OwnBodyCheck || r.SpecCheckOnError) {
+			// The body is judged later; hide it, or the validator's security
+			// step would read all of it into memory for nothing.
 			o = &noBody
+			shallow := *req
+			shallow.Body = http.NoBody
+			vreq = &shallow
 		}
-		in := &openapi3filter.RequestValidationInput{Request: req, PathParams: params, Route: route, Options: o}
+		in := &openapi3filter.RequestValidationInput{Request: vreq, PathParams: params, Route: route, Options: o}
 		if err := openapi3filter.ValidateRequest(req.Context(), in); err != nil {
 			if verr := fromSpecError(err); verr != nil {
 				return verr

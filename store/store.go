@@ -109,16 +109,6 @@ func (s *Store) db(ctx context.Context) querier {
 	return s.pool
 }
 
-// sendBatch runs the batch in one round trip: on the transaction ctx
-// carries, else on the pool, where PostgreSQL runs the whole batch as one
-// implicit transaction (all or nothing).
-func (s *Store) sendBatch(ctx context.Context, b *pgx.Batch) error {
-	if tx, ok := ctx.Value(txKey{}).(pgx.Tx); ok {
-		return tx.SendBatch(ctx, b).Close()
-	}
-	return s.pool.SendBatch(ctx, b).Close()
-}
-
 // inTx runs fn in a transaction — a savepoint inside the one ctx carries —
 // retrying a bounded number of times on serialization failures and
 // deadlocks (40001, 40P01) when it owns the transaction.
