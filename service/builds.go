@@ -308,9 +308,7 @@ var resolvedParts = [...]string{"hub", "nipple", "rim", "spoke", "tyre", "washer
 // (each one JSON value, by its member name) and spec's scalars make, as if
 // they were one object. It writes that object by appending the parts' bytes
 // as they are, rather than marshalling a map (which would re-encode and
-// compact every part), and decodes it once. Should that fail, the object
-// is built and decoded the old way, whose error — and, were it ever to
-// disagree, result — is the one returned.
+// compact every part), and decodes it once.
 func decodeResolved(spec BuildSpec, obj map[string]json.RawMessage) (CompatibilityInput, error) {
 	n := 128 + len(spec.Crosses)
 	for _, v := range obj {
@@ -344,19 +342,6 @@ func decodeResolved(spec BuildSpec, obj map[string]json.RawMessage) (Compatibili
 	doc = append(doc, '}')
 	var in CompatibilityInput
 	dec := json.NewDecoder(bytes.NewReader(doc))
-	dec.DisallowUnknownFields()
-	if err := dec.Decode(&in.Input); err == nil {
-		return in, nil
-	}
-	obj["crosses"] = spec.Crosses
-	obj["spoke_count"], _ = json.Marshal(spec.SpokeCount)
-	obj["target_tension_n"], _ = json.Marshal(spec.TargetTensionN)
-	if spec.FrameSpacingMM != nil {
-		obj["frame_spacing_mm"], _ = json.Marshal(*spec.FrameSpacingMM)
-	}
-	merged, _ := json.Marshal(obj)
-	in = CompatibilityInput{}
-	dec = json.NewDecoder(bytes.NewReader(merged))
 	dec.DisallowUnknownFields()
 	if err := dec.Decode(&in.Input); err != nil {
 		return CompatibilityInput{}, Invalid("/spec", "not a valid build spec: %s", strings.TrimPrefix(err.Error(), "json: "))
