@@ -4,6 +4,7 @@
 # pgbench's single-row INSERT rate on the same PostgreSQL, alternating the
 # two ROUNDS times in one run so both see the same machine. Loopback only.
 # Needs wrk and pgbench (Debian: apt-get install -y wrk postgresql-client).
+# SSLMODE=disable runs both sides without TLS on loopback (default: prefer).
 set -euo pipefail
 cd "$(dirname "$0")/../.."
 DB=${DB:-wbload}
@@ -13,7 +14,8 @@ DUR=${DUR:-10}
 ROUNDS=${ROUNDS:-2}
 BIN=${BIN:-/tmp/wheelbench-load}
 psql -h 127.0.0.1 -U postgres -qc "DROP DATABASE IF EXISTS $DB" -c "CREATE DATABASE $DB"
-export WHEELBENCH_DATABASE_URL="host=127.0.0.1 user=postgres dbname=$DB"
+export WHEELBENCH_DATABASE_URL="host=127.0.0.1 user=postgres dbname=$DB${SSLMODE:+ sslmode=$SSLMODE}"
+export PGSSLMODE=${SSLMODE:-prefer}
 go build -o "$BIN" ./cmd/wheelbench
 KEY=$("$BIN" admin create-org --name "Load test shop" | sed -n 's/^API key: //p')
 WHEELBENCH_ADDR=$ADDR WHEELBENCH_LOG_LEVEL=warn "$BIN" serve &
