@@ -1,44 +1,20 @@
 package fit
 
 import (
-	"bufio"
-	"os"
 	"strconv"
 	"strings"
 	"testing"
+	"wheelbench/service/reftest"
 
 	"github.com/google/go-cmp/cmp"
 )
-
-// readTSV returns the non-comment rows of a tab-separated reference file.
-func readTSV(t *testing.T, path string) [][]string {
-	t.Helper()
-	f, err := os.Open(path)
-	if err != nil {
-		t.Fatal(err)
-	}
-	defer f.Close()
-	var rows [][]string
-	sc := bufio.NewScanner(f)
-	for sc.Scan() {
-		line := sc.Text()
-		if line == "" || strings.HasPrefix(line, "#") {
-			continue
-		}
-		rows = append(rows, strings.Split(line, "\t"))
-	}
-	if err := sc.Err(); err != nil {
-		t.Fatal(err)
-	}
-	return rows
-}
 
 // TestBSDTable checks the Go table row by row against
 // testdata/reference/iso5775_bsd.tsv (ISO 5775 sizes with their sources and
 // confidence).
 func TestBSDTable(t *testing.T) {
 	var want []BSDSize
-	for _, r := range readTSV(t, "../../testdata/reference/iso5775_bsd.tsv") {
+	for _, r := range reftest.Rows(t, "iso5775_bsd.tsv") {
 		n, err := strconv.Atoi(r[0])
 		if err != nil {
 			t.Fatal(err)

@@ -3,6 +3,7 @@ package fit
 import (
 	"strconv"
 	"testing"
+	"wheelbench/service/reftest"
 )
 
 // TestWidthGuidance checks the tyre/rim width constants and default bands
@@ -10,7 +11,7 @@ import (
 // guidance, B).
 func TestWidthGuidance(t *testing.T) {
 	ref := map[string]float64{}
-	for _, r := range readTSV(t, "../../testdata/reference/rim_tyre_width.tsv") {
+	for _, r := range reftest.Rows(t, "rim_tyre_width.tsv") {
 		v, err := strconv.ParseFloat(r[1], 64)
 		if err != nil {
 			t.Fatal(err)

@@ -1,13 +1,11 @@
 package geometry
 
 import (
-	"bufio"
 	"math"
-	"os"
-	"strconv"
 	"strings"
 	"testing"
 
+	"wheelbench/service/reftest"
 	"wheelbench/service/spoke"
 )
 
@@ -15,27 +13,9 @@ import (
 // materials.tsv, whose source column cites the handbook data sheets.
 func referenceModuli(t *testing.T) map[string]float64 {
 	t.Helper()
-	f, err := os.Open("../../testdata/reference/materials.tsv")
-	if err != nil {
-		t.Fatal(err)
-	}
-	defer f.Close()
 	out := map[string]float64{}
-	sc := bufio.NewScanner(f)
-	for sc.Scan() {
-		line := sc.Text()
-		if line == "" || strings.HasPrefix(line, "#") {
-			continue
-		}
-		cols := strings.Split(line, "\t")
-		e, err := strconv.ParseFloat(cols[1], 64)
-		if err != nil {
-			t.Fatal(err)
-		}
-		out[cols[0]] = e
-	}
-	if err := sc.Err(); err != nil {
-		t.Fatal(err)
+	for _, cols := range reftest.Rows(t, "materials.tsv") {
+		out[cols[0]] = reftest.Float(t, cols[1])
 	}
 	return out
 }

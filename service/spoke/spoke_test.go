@@ -1,36 +1,11 @@
 package spoke
 
 import (
-	"bufio"
 	"math"
-	"os"
 	"strconv"
-	"strings"
 	"testing"
+	"wheelbench/service/reftest"
 )
-
-// readTSV returns the non-comment rows of a tab-separated reference file.
-func readTSV(t *testing.T, path string) [][]string {
-	t.Helper()
-	f, err := os.Open(path)
-	if err != nil {
-		t.Fatal(err)
-	}
-	defer f.Close()
-	var rows [][]string
-	sc := bufio.NewScanner(f)
-	for sc.Scan() {
-		line := sc.Text()
-		if line == "" || strings.HasPrefix(line, "#") {
-			continue
-		}
-		rows = append(rows, strings.Split(line, "\t"))
-	}
-	if err := sc.Err(); err != nil {
-		t.Fatal(err)
-	}
-	return rows
-}
 
 func num(t *testing.T, s string) float64 {
 	t.Helper()
@@ -43,7 +18,7 @@ func num(t *testing.T, s string) float64 {
 
 // TestGaugeDiameters checks every gauge against BS 3737 (testdata/reference/swg.tsv).
 func TestGaugeDiameters(t *testing.T) {
-	rows := readTSV(t, "../../testdata/reference/swg.tsv")
+	rows := reftest.Rows(t, "swg.tsv")
 	if len(rows) != len(gaugeInches) {
 		t.Fatalf("reference has %d gauges, package %d", len(rows), len(gaugeInches))
 	}
@@ -70,7 +45,7 @@ func TestGaugeDiameters(t *testing.T) {
 // (testdata/reference/sections.tsv, computed with mpmath and by integration).
 func TestSections(t *testing.T) {
 	ref := map[string]float64{}
-	for _, r := range readTSV(t, "../../testdata/reference/sections.tsv") {
+	for _, r := range reftest.Rows(t, "sections.tsv") {
 		ref[r[0]] = num(t, r[1])
 	}
 	round := Section{Profile: Round, DiameterMM: 2}
@@ -127,7 +102,7 @@ func TestValidate(t *testing.T) {
 
 // TestMaterials checks the table against testdata/reference/materials.tsv.
 func TestMaterials(t *testing.T) {
-	rows := readTSV(t, "../../testdata/reference/materials.tsv")
+	rows := reftest.Rows(t, "materials.tsv")
 	for _, r := range rows {
 		m, ok := LookupMaterial(r[0])
 		if !ok {

@@ -1,36 +1,11 @@
 package tension
 
 import (
-	"bufio"
 	"math"
-	"os"
 	"strconv"
-	"strings"
 	"testing"
+	"wheelbench/service/reftest"
 )
-
-// readTSV returns the non-comment rows of a tab-separated reference file.
-func readTSV(t *testing.T, path string) [][]string {
-	t.Helper()
-	f, err := os.Open(path)
-	if err != nil {
-		t.Fatal(err)
-	}
-	defer f.Close()
-	var rows [][]string
-	sc := bufio.NewScanner(f)
-	for sc.Scan() {
-		line := sc.Text()
-		if strings.TrimSpace(line) == "" || strings.HasPrefix(line, "#") {
-			continue
-		}
-		rows = append(rows, strings.Fields(line))
-	}
-	if err := sc.Err(); err != nil {
-		t.Fatal(err)
-	}
-	return rows
-}
 
 func num(t *testing.T, s string) float64 {
 	t.Helper()
@@ -55,7 +30,7 @@ var steel2mm = 193000 * math.Pi * 16 / 64
 // TestBeamWorkedValues checks the worked values of REFERENCE.md §9
 // (testdata/reference/beam.tsv): d = 2.0 mm, L = 300 mm, P = 10 N, E = 193 GPa.
 func TestBeamWorkedValues(t *testing.T) {
-	for _, r := range readTSV(t, "../../testdata/reference/beam.tsv") {
+	for _, r := range reftest.Rows(t, "beam.tsv") {
 		tn, want := num(t, r[0]), num(t, r[1])
 		got := midspanDeflectionMM(10, tn, 300, steel2mm)
 		// The file gives 10–12 significant digits; agree to 1e-9 relative.
