@@ -2,7 +2,6 @@ package geometry
 
 import (
 	"math"
-	"strings"
 	"testing"
 
 	"wheelbench/service/reftest"
