@@ -269,3 +269,52 @@ func isTransport(err error) bool {
 	s := err.Error()
 	return strings.Contains(s, "connection refused") || strings.Contains(s, "EOF") || strings.Contains(s, "connection reset")
 }
+
+// TestSIGTERMDrainsInFlight: a request whose headers the server has read
+// when SIGTERM arrives still gets its full answer; then the process exits 0.
+func TestSIGTERMDrainsInFlight(t *testing.T) {
+	dbURL := storetest.URL(t)
+	out, err := command(t, dbURL, nil, "admin", "create-org", "--name", "Drain test shop").CombinedOutput()
+	if err != nil {
+		t.Fatalf("create-org: %v\n%s", err, out)
+	}
+	key := ""
+	for _, line := range strings.Split(string(out), "\n") {
+		if k, ok := strings.CutPrefix(line, "API key: "); ok {
+			key = k
+		}
+	}
+	addr := freeAddr(t)
+	srv := startServer(t, dbURL, addr)
+	body := []byte(`{"spoke_count": 32, "hub": {"left": {"pcd_mm": 45, "center_to_flange_mm": 36}, "right": {"pcd_mm": 45, "center_to_flange_mm": 18.5}}, "rim": {"erd_mm": 599}, "crosses": {"left": 3, "right": 3}}`)
+	conn, err := net.Dial("tcp", addr)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer conn.Close()
+	// Headers and half the body, then SIGTERM, then the rest.
+	fmt.Fprintf(conn, "POST /v1/spoke-lengths HTTP/1.1\r\nHost: %s\r\nAuthorization: Bearer %s\r\nContent-Type: application/json\r\nContent-Length: %d\r\nConnection: close\r\n\r\n", addr, key, len(body))
+	half := len(body) / 2
+	if _, err := conn.Write(body[:half]); err != nil {
+		t.Fatal(err)
+	}
+	time.Sleep(200 * time.Millisecond) // the server is now reading this request's body
+	if err := srv.cmd.Process.Signal(syscall.SIGTERM); err != nil {
+		t.Fatal(err)
+	}
+	time.Sleep(200 * time.Millisecond)
+	if _, err := conn.Write(body[half:]); err != nil {
+		t.Fatal(err)
+	}
+	res, err := http.ReadResponse(bufio.NewReader(conn), nil)
+	if err != nil {
+		t.Fatalf("in-flight request lost: %v\n%s", err, srv.logs.String())
+	}
+	b, _ := io.ReadAll(res.Body)
+	if res.StatusCode != 200 || !strings.Contains(string(b), `"length_mm"`) {
+		t.Fatalf("in-flight request: %d %s", res.StatusCode, b)
+	}
+	if err := srv.cmd.Wait(); err != nil {
+		t.Fatalf("serve exited with %v after SIGTERM\n%s", err, srv.logs.String())
+	}
+}
