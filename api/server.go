@@ -72,13 +72,13 @@ type Route struct {
 }
 
 func init() {
-	openapi3.DefineStringFormatCallback("uuid", func(s string) error {
+	openapi3.DefineStringFormatValidator("uuid", openapi3.NewCallbackValidator(func(s string) error {
 		_, err := uuid.Parse(s)
 		if err != nil || len(s) != 36 {
 			return errInvalidUUID
 		}
 		return nil
-	})
+	}))
 	openapi3filter.RegisterBodyDecoder("application/problem+json", openapi3filter.JSONBodyDecoder)
 }
 

@@ -162,7 +162,7 @@ func TestAppendResultMatches(t *testing.T) {
 		t.Fatalf("only %d random wheels computed; the generator is off", results)
 	}
 	edge := geometry.Result{
-		Left:                    geometry.SideResult{LengthMM: 1e21, BracingAngleDeg: 1e-7, HubAngleDeg: -0.0, TensionN: fp(5e-324)},
+		Left:                    geometry.SideResult{LengthMM: 1e21, BracingAngleDeg: 1e-7, HubAngleDeg: math.Copysign(0, -1), TensionN: fp(5e-324)},
 		Right:                   geometry.SideResult{LengthMM: 123456789.125, SpokeEndMM: fp(-1e-6), OrderLengthMM: fp(9.999999999999999e20)},
 		TensionRatioLeftToRight: 1,
 		Findings:                []geometry.Finding{{Code: "x", Severity: "info", Message: `a "quoted" <b> & ° \ line` + "\n" + "\u2028"}},

@@ -26,10 +26,7 @@ func TestChangeFeedMissesNothing(t *testing.T) {
 	ctx := context.Background()
 	pool := storetest.Pool(t)
 	st := store.New(pool)
-	org := uuid.Must(uuid.NewV7())
-	if err := st.CreateOrganisation(ctx, service.Organisation{ID: org, Name: "feed", CreatedAt: time.Now()}); err != nil {
-		t.Fatal(err)
-	}
+	org := newOrg(t, st, "feed")
 	const writers, perWriter = 6, 8
 	var wg sync.WaitGroup
 	done := make(chan struct{})
@@ -124,10 +121,7 @@ func TestChangeFeedLateCommit(t *testing.T) {
 	ctx := context.Background()
 	pool := storetest.Pool(t)
 	st := store.New(pool)
-	org := uuid.Must(uuid.NewV7())
-	if err := st.CreateOrganisation(ctx, service.Organisation{ID: org, Name: "feed", CreatedAt: time.Now()}); err != nil {
-		t.Fatal(err)
-	}
+	org := newOrg(t, st, "feed")
 	a, err := pool.Begin(ctx)
 	if err != nil {
 		t.Fatal(err)
@@ -178,10 +172,7 @@ func TestChangeCursorExpires(t *testing.T) {
 	ctx := context.Background()
 	pool := storetest.Pool(t)
 	st := store.New(pool)
-	org := uuid.Must(uuid.NewV7())
-	if err := st.CreateOrganisation(ctx, service.Organisation{ID: org, Name: "feed", CreatedAt: time.Now()}); err != nil {
-		t.Fatal(err)
-	}
+	org := newOrg(t, st, "feed")
 	for range 3 {
 		if err := insertChange(ctx, pool, org, "1"); err != nil {
 			t.Fatal(err)

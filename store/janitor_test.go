@@ -3,7 +3,6 @@ package store_test
 import (
 	"context"
 	"testing"
-	"time"
 
 	"github.com/google/uuid"
 
@@ -19,10 +18,7 @@ func TestJanitorPrunesOnlyWhatExpired(t *testing.T) {
 	ctx := context.Background()
 	pool := storetest.Pool(t)
 	st := store.New(pool)
-	org := uuid.Must(uuid.NewV7())
-	if err := st.CreateOrganisation(ctx, service.Organisation{ID: org, Name: "janitor", CreatedAt: time.Now()}); err != nil {
-		t.Fatal(err)
-	}
+	org := newOrg(t, st, "janitor")
 	ep := uuid.New()
 	for _, q := range []string{
 		`INSERT INTO idempotency_keys (org_id, key, fingerprint, status, body, expires_at) VALUES ($1, 'old', '', 201, '', now() - interval '1 hour')`,

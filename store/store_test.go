@@ -65,3 +65,13 @@ func TestMigrateTwiceIsSafe(t *testing.T) {
 		}
 	}
 }
+
+// newOrg creates an organisation for a store test and returns its id.
+func newOrg(t *testing.T, st *store.Store, name string) uuid.UUID {
+	t.Helper()
+	id := uuid.Must(uuid.NewV7())
+	if err := st.CreateOrganisation(context.Background(), service.Organisation{ID: id, Name: name, CreatedAt: time.Now()}); err != nil {
+		t.Fatal(err)
+	}
+	return id
+}

@@ -29,10 +29,7 @@ func newHookFixture(t *testing.T, events ...string) hookFixture {
 	ctx := context.Background()
 	pool := storetest.Pool(t)
 	st := store.New(pool)
-	org := uuid.Must(uuid.NewV7())
-	if err := st.CreateOrganisation(ctx, service.Organisation{ID: org, Name: "hooks", CreatedAt: time.Now()}); err != nil {
-		t.Fatal(err)
-	}
+	org := newOrg(t, st, "hooks")
 	ep := service.WebhookEndpoint{ID: uuid.Must(uuid.NewV7()), OrgID: org, URL: "https://receiver.example/hook",
 		Events: events, Active: true, Secret: "whsec_AAAAAAAAAAAAAAAAAAAAAAAAAAAAAAAA", Version: 1,
 		CreatedAt: time.Now(), UpdatedAt: time.Now()}
