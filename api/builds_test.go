@@ -339,6 +339,8 @@ func TestBuildBadBodies(t *testing.T) {
 		}), 400, "/spec/hub/left/pcd_mm"},
 		{"bad uuid", with(func(sp map[string]any) { sp["rim_id"] = "not-an-id" }), 400, "/spec/rim_id"},
 		{"missing location", map[string]any{"spec": s.spec()}, 400, ""},
+		{"hub inline and by id", with(func(sp map[string]any) { sp["hub"] = hubDims }), 400, "/spec/hub_id"},
+		{"no hub at all", with(func(sp map[string]any) { delete(sp, "hub_id"); sp["hub"] = nil }), 400, "/spec/hub"},
 		{"negative crosses", with(func(sp map[string]any) { sp["crosses"] = map[string]any{"left": -1, "right": 3} }), 400, "/spec/crosses/left"},
 		{"NaN-producing ERD", with(func(sp map[string]any) {
 			delete(sp, "rim_id")

@@ -6,13 +6,13 @@ import (
 	"encoding/json"
 	"errors"
 	"fmt"
-	"strconv"
 	"strings"
 	"time"
 	"unicode/utf8"
 
 	"github.com/google/uuid"
 
+	"wheelbench/service/fit"
 	"wheelbench/service/geometry"
 	"wheelbench/service/spoke"
 )
@@ -118,23 +118,24 @@ type BuildParts struct {
 
 // BuildSpec is a build's spec: the compatibility-check body in which each
 // part may instead be named by a catalog id (hub_id, rim_id, spoke_id,
-// nipple_id, tyre_id, washer_ids).
+// nipple_id, tyre_id, washer_ids). Inline parts decode straight into their
+// fit types, so a spec is decoded once; null counts as absent.
 type BuildSpec struct {
 	SpokeCount     int             `json:"spoke_count"`
-	Hub            json.RawMessage `json:"hub,omitempty"`
+	Hub            *fit.Hub        `json:"hub,omitempty"`
 	HubID          *uuid.UUID      `json:"hub_id,omitempty"`
-	Rim            json.RawMessage `json:"rim,omitempty"`
+	Rim            *fit.Rim        `json:"rim,omitempty"`
 	RimID          *uuid.UUID      `json:"rim_id,omitempty"`
-	Spoke          json.RawMessage `json:"spoke,omitempty"`
+	Spoke          *fit.SpokeSpec  `json:"spoke,omitempty"`
 	SpokeID        *uuid.UUID      `json:"spoke_id,omitempty"`
-	Nipple         json.RawMessage `json:"nipple,omitempty"`
+	Nipple         *fit.Nipple     `json:"nipple,omitempty"`
 	NippleID       *uuid.UUID      `json:"nipple_id,omitempty"`
-	Washers        json.RawMessage `json:"washers,omitempty"`
+	Washers        *[]fit.Washer   `json:"washers,omitempty"`
 	WasherIDs      []uuid.UUID     `json:"washer_ids,omitempty"`
-	Tyre           json.RawMessage `json:"tyre,omitempty"`
+	Tyre           *fit.Tyre       `json:"tyre,omitempty"`
 	TyreID         *uuid.UUID      `json:"tyre_id,omitempty"`
 	FrameSpacingMM *float64        `json:"frame_spacing_mm,omitempty"`
-	Crosses        json.RawMessage `json:"crosses"`
+	Crosses        fit.Crosses     `json:"crosses"`
 	TargetTensionN float64         `json:"target_tension_n"`
 	Stock          *geometry.Stock `json:"stock,omitempty"`
 }
@@ -185,11 +186,11 @@ func prefixPointers(err error, prefix string) error {
 	return errors.Join(out...)
 }
 
-// resolvePart returns the dimensions of the part named inline or by id.
-func (s *Service) resolvePart(ctx context.Context, orgID uuid.UUID, kind PartKind, inline json.RawMessage, id *uuid.UUID, field string) (json.RawMessage, *uuid.UUID, error) {
-	hasInline := len(bytes.TrimSpace(inline)) > 0 && !bytes.Equal(bytes.TrimSpace(inline), []byte("null"))
+// resolvePart returns the part named inline or by id (nil when neither),
+// with the catalog id when it came from the catalog.
+func resolvePart[T any](ctx context.Context, s *Service, orgID uuid.UUID, kind PartKind, inline *T, id *uuid.UUID, field string) (*T, *uuid.UUID, error) {
 	switch {
-	case hasInline && id != nil:
+	case inline != nil && id != nil:
 		return nil, nil, Invalid("/spec/"+field+"_id", "give %s inline or as %s_id, not both", field, field)
 	case id != nil:
 		p, err := s.store.GetPart(ctx, orgID, *id)
@@ -202,60 +203,79 @@ func (s *Service) resolvePart(ctx context.Context, orgID uuid.UUID, kind PartKin
 		if p.Kind != kind {
 			return nil, nil, Unprocessable("/spec/"+field+"_id", "part %s is a %s, not a %s", id, p.Kind, kind)
 		}
-		return p.Dimensions, id, nil
-	case hasInline:
-		return inline, nil, nil
+		dims := new(T)
+		if err := decodeStrict(p.Dimensions, dims); err != nil {
+			return nil, nil, Unprocessable("/spec/"+field+"_id", "part %s's dimensions do not describe a %s: %s", id, kind, strings.TrimPrefix(err.Error(), "json: "))
+		}
+		return dims, id, nil
 	}
-	return nil, nil, nil
+	return inline, nil, nil
+}
+
+// decodeStrict decodes one JSON value into v, refusing unknown members.
+func decodeStrict(raw []byte, v any) error {
+	dec := json.NewDecoder(bytes.NewReader(raw))
+	dec.DisallowUnknownFields()
+	return dec.Decode(v)
+}
+
+// specDecodeError is the field error for a spec that does not decode: at
+// the member whose type is wrong when encoding/json names it, else at /spec.
+func specDecodeError(err error) error {
+	var typ *json.UnmarshalTypeError
+	if errors.As(err, &typ) && typ.Field != "" {
+		return Invalid("/spec/"+strings.ReplaceAll(typ.Field, ".", "/"), "not a valid build spec: %s", strings.TrimPrefix(err.Error(), "json: "))
+	}
+	return Invalid("/spec", "not a valid build spec: %s", strings.TrimPrefix(err.Error(), "json: "))
 }
 
 // resolveSpec turns a build spec into a compatibility input, reading the
 // catalog parts it names.
 func (s *Service) resolveSpec(ctx context.Context, orgID, locationID uuid.UUID, raw json.RawMessage) (CompatibilityInput, BuildParts, string, error) {
 	var spec BuildSpec
-	dec := json.NewDecoder(bytes.NewReader(raw))
-	dec.DisallowUnknownFields()
-	if err := dec.Decode(&spec); err != nil {
-		return CompatibilityInput{}, BuildParts{}, "", Invalid("/spec", "not a valid build spec: %s", strings.TrimPrefix(err.Error(), "json: "))
+	if err := decodeStrict(raw, &spec); err != nil {
+		return CompatibilityInput{}, BuildParts{}, "", specDecodeError(err)
 	}
 	var parts BuildParts
-	obj := map[string]json.RawMessage{}
 	var errs []error
-	for _, p := range []struct {
-		kind   PartKind
-		field  string
-		inline json.RawMessage
-		id     *uuid.UUID
-		dst    **uuid.UUID
-	}{
-		{PartHub, "hub", spec.Hub, spec.HubID, &parts.Hub},
-		{PartRim, "rim", spec.Rim, spec.RimID, &parts.Rim},
-		{PartSpoke, "spoke", spec.Spoke, spec.SpokeID, &parts.Spoke},
-		{PartNipple, "nipple", spec.Nipple, spec.NippleID, &parts.Nipple},
-		{PartTyre, "tyre", spec.Tyre, spec.TyreID, &parts.Tyre},
-	} {
-		dims, id, err := s.resolvePart(ctx, orgID, p.kind, p.inline, p.id, p.field)
-		if err != nil {
-			errs = append(errs, err)
-			continue
+	required := func(field string, missing bool) {
+		if missing {
+			errs = append(errs, Invalid("/spec/"+field, "give the %s inline or as %s_id", field, field))
 		}
-		if dims == nil {
-			if p.kind != PartTyre {
-				errs = append(errs, Invalid("/spec/"+p.field, "give the %s inline or as %s_id", p.field, p.field))
-			}
-			continue
-		}
-		obj[p.field] = dims
-		*p.dst = id
 	}
-	washers := spec.Washers
+	var (
+		hub  *fit.Hub
+		rim  *fit.Rim
+		spk  *fit.SpokeSpec
+		nip  *fit.Nipple
+		tyre *fit.Tyre
+		err  error
+	)
+	hub, parts.Hub, err = resolvePart(ctx, s, orgID, PartHub, spec.Hub, spec.HubID, "hub")
+	errs = append(errs, err)
+	required("hub", err == nil && hub == nil)
+	rim, parts.Rim, err = resolvePart(ctx, s, orgID, PartRim, spec.Rim, spec.RimID, "rim")
+	errs = append(errs, err)
+	required("rim", err == nil && rim == nil)
+	spk, parts.Spoke, err = resolvePart(ctx, s, orgID, PartSpoke, spec.Spoke, spec.SpokeID, "spoke")
+	errs = append(errs, err)
+	required("spoke", err == nil && spk == nil)
+	nip, parts.Nipple, err = resolvePart(ctx, s, orgID, PartNipple, spec.Nipple, spec.NippleID, "nipple")
+	errs = append(errs, err)
+	required("nipple", err == nil && nip == nil)
+	tyre, parts.Tyre, err = resolvePart(ctx, s, orgID, PartTyre, spec.Tyre, spec.TyreID, "tyre")
+	errs = append(errs, err)
+	var washers []fit.Washer
+	if spec.Washers != nil {
+		washers = *spec.Washers
+	}
 	if len(spec.WasherIDs) > 0 {
-		if len(bytes.TrimSpace(washers)) > 0 {
+		if spec.Washers != nil {
 			errs = append(errs, Invalid("/spec/washer_ids", "give washers inline or as washer_ids, not both"))
 		}
-		var list []json.RawMessage
+		washers = make([]fit.Washer, 0, len(spec.WasherIDs))
 		for i, id := range spec.WasherIDs {
-			dims, _, err := s.resolvePart(ctx, orgID, PartWasher, nil, &id, "washer")
+			w, _, err := resolvePart[fit.Washer](ctx, s, orgID, PartWasher, nil, &id, "washer")
 			var fe *FieldError
 			if errors.As(err, &fe) {
 				fe.Pointer = fmt.Sprintf("/spec/washer_ids/%d", i)
@@ -264,21 +284,15 @@ func (s *Service) resolveSpec(ctx context.Context, orgID, locationID uuid.UUID, 
 				errs = append(errs, err)
 				continue
 			}
-			list = append(list, dims)
+			washers = append(washers, *w)
 			parts.Washers = append(parts.Washers, id)
 		}
-		washers, _ = json.Marshal(list)
 	}
 	if err := errors.Join(errs...); err != nil {
 		return CompatibilityInput{}, parts, "", err
 	}
-	if len(bytes.TrimSpace(washers)) > 0 {
-		obj["washers"] = washers
-	}
-	in, err := decodeResolved(spec, obj)
-	if err != nil {
-		return CompatibilityInput{}, parts, "", err
-	}
+	in := CompatibilityInput{Input: fit.Input{SpokeCount: spec.SpokeCount, Hub: *hub, Rim: *rim, Spoke: *spk, Nipple: *nip,
+		Washers: washers, Tyre: tyre, FrameSpacingMM: spec.FrameSpacingMM, Crosses: spec.Crosses, TargetTensionN: spec.TargetTensionN}}
 	source := "none"
 	if spec.Stock != nil {
 		in.Stock, source = spec.Stock, "spec"
@@ -298,55 +312,6 @@ func (s *Service) resolveSpec(ctx context.Context, orgID, locationID uuid.UUID, 
 		}
 	}
 	return in, parts, source, nil
-}
-
-// resolvedParts are the members of a resolved spec besides the parts, in
-// the order encoding/json writes a map's keys.
-var resolvedParts = [...]string{"hub", "nipple", "rim", "spoke", "tyre", "washers"}
-
-// decodeResolved decodes the compatibility input that the parts in obj
-// (each one JSON value, by its member name) and spec's scalars make, as if
-// they were one object. It writes that object by appending the parts' bytes
-// as they are, rather than marshalling a map (which would re-encode and
-// compact every part), and decodes it once.
-func decodeResolved(spec BuildSpec, obj map[string]json.RawMessage) (CompatibilityInput, error) {
-	n := 128 + len(spec.Crosses)
-	for _, v := range obj {
-		n += len(v) + 16
-	}
-	doc := make([]byte, 0, n)
-	doc = append(doc, '{')
-	for _, k := range resolvedParts {
-		if v, ok := obj[k]; ok {
-			doc = append(doc, '"')
-			doc = append(doc, k...)
-			doc = append(doc, `":`...)
-			doc = append(doc, v...)
-			doc = append(doc, ',')
-		}
-	}
-	doc = append(doc, `"crosses":`...)
-	if len(spec.Crosses) == 0 {
-		doc = append(doc, "null"...)
-	} else {
-		doc = append(doc, spec.Crosses...)
-	}
-	if spec.FrameSpacingMM != nil {
-		doc = append(doc, `,"frame_spacing_mm":`...)
-		doc = strconv.AppendFloat(doc, *spec.FrameSpacingMM, 'g', -1, 64)
-	}
-	doc = append(doc, `,"spoke_count":`...)
-	doc = strconv.AppendInt(doc, int64(spec.SpokeCount), 10)
-	doc = append(doc, `,"target_tension_n":`...)
-	doc = strconv.AppendFloat(doc, spec.TargetTensionN, 'g', -1, 64)
-	doc = append(doc, '}')
-	var in CompatibilityInput
-	dec := json.NewDecoder(bytes.NewReader(doc))
-	dec.DisallowUnknownFields()
-	if err := dec.Decode(&in.Input); err != nil {
-		return CompatibilityInput{}, Invalid("/spec", "not a valid build spec: %s", strings.TrimPrefix(err.Error(), "json: "))
-	}
-	return in, nil
 }
 
 // CreateBuild computes a build's snapshot — parts resolved, fit verdict,
