@@ -26,6 +26,10 @@ LOCATION=$(curl -fs -H "Authorization: Bearer $KEY" -H 'Content-Type: applicatio
   -d '{"name":"Load bench"}' "http://$ADDR/v1/locations" | sed -n 's/.*"id":"\([^"]*\)".*/\1/p')
 psql -h 127.0.0.1 -U postgres -d "$DB" -qc "CREATE TABLE load_rows (id bigserial PRIMARY KEY, payload text NOT NULL, created_at timestamptz NOT NULL DEFAULT now())"
 cpu() { awk '{print $14 + $15}' "/proc/$PID/stat"; }   # server user+system CPU, clock ticks
+# PostgreSQL's user+system CPU, clock ticks: every process named postgres
+# (the service's pooled backends live through a round, so none is lost).
+# cat fails on processes that end while it reads; what it read still counts.
+pgcpu() { { cat /proc/[0-9]*/stat 2>/dev/null || true; } | awk '$2 == "(postgres)" {t += $14 + $15} END {print t + 0}'; }
 TICK=$(getconf CLK_TCK)
 # Whole-machine CPU steal and I/O wait over a round, in % of all CPU time
 # (/proc/stat's first line: user nice system idle iowait irq softirq steal).
@@ -33,17 +37,19 @@ machine() { awk '/^cpu / {print $2+$3+$4+$5+$6+$7+$8+$9, $6, $9}' /proc/stat; }
 echo "$(uptime)"
 for r in $(seq 1 "$ROUNDS"); do
   before=$(cpu)
+  pg0=$(pgcpu)
   read -r m0 w0 s0 < <(machine)
   out=$(KEY=$KEY LOCATION=$LOCATION wrk -t2 -c"$CONNS" -d"${DUR}s" -s testdata/load/build_create.lua "http://$ADDR")
   after=$(cpu)
+  pg1=$(pgcpu)
   rps=$(echo "$out" | sed -n 's/^Requests\/sec: *//p')
   reqs=$(echo "$out" | sed -n 's/^ *\([0-9]*\) requests in.*/\1/p')
   non2xx=$(echo "$out" | sed -n 's/.*Non-2xx or 3xx responses: *//p')
   read -r m1 w1 s1 < <(machine)
   tps=$(pgbench -h 127.0.0.1 -U postgres -n -f testdata/load/insert.sql -c "$CONNS" -j 2 -T "$DUR" "$DB" 2>/dev/null | sed -n 's/^tps = \([0-9.]*\).*/\1/p')
-  awk -v r="$r" -v rps="$rps" -v tps="$tps" -v reqs="$reqs" -v ticks=$((after - before)) -v tick="$TICK" -v bad="${non2xx:-0}" \
+  awk -v r="$r" -v rps="$rps" -v tps="$tps" -v reqs="$reqs" -v ticks=$((after - before)) -v pgticks=$((pg1 - pg0)) -v tick="$TICK" -v bad="${non2xx:-0}" \
     -v steal=$(( (s1 - s0) * 100 / (m1 - m0 + 1) )) -v iowait=$(( (w1 - w0) * 100 / (m1 - m0 + 1) )) 'BEGIN {
-    printf "round %s: builds %.0f/s (%d requests, %s non-2xx, server CPU %.0f us/build, steal %d%%, iowait %d%%), pgbench INSERT %.0f tps, ratio %.2f\n",
-      r, rps, reqs, bad, ticks / tick / reqs * 1e6, steal, iowait, tps, rps / tps }'
+    printf "round %s: builds %.0f/s (%d requests, %s non-2xx, server CPU %.0f us/build, PostgreSQL CPU %.0f us/build, steal %d%%, iowait %d%%), pgbench INSERT %.0f tps, ratio %.2f\n",
+      r, rps, reqs, bad, ticks / tick / reqs * 1e6, pgticks / tick / reqs * 1e6, steal, iowait, tps, rps / tps }'
 done
 psql -h 127.0.0.1 -U postgres -d "$DB" -Atc "SELECT 'builds stored: ' || count(*) FROM builds"
