@@ -50,6 +50,7 @@ func TestCreateBuildResponseIsTheBuild(t *testing.T) {
 	}{
 		{"inline", "", `{"location_id": "` + s.loc.String() + `", "external_ref": "<A&B>", "spec": ` + spaced.String() + `}`},
 		{"catalog", "", `{"location_id":"` + s.loc.String() + `","spec":` + string(catalog) + `}`},
+		{"catalog, odd reference", "", `{"location_id":"` + s.loc.String() + `","external_ref":"r\u00e9f\u2028\t\"q\"\\","spec":` + string(catalog) + `}`},
 		{"catalog, pretty", "?pretty", `{"location_id":"` + s.loc.String() + `","spec":` + string(catalog) + `}`},
 	} {
 		r := e.want(e.do("POST", "/v1/builds"+c.query, w, c.body), 201)

@@ -50,7 +50,7 @@ func (a *app) close() { a.pool.Close() }
 // serveGCPercent is serve's garbage-collection target when GOGC is unset.
 // A build request allocates about 50 kB, mostly short-lived encode and
 // decode buffers; at Go's default of 100 the collector took about an
-// eighth of the service's CPU under load, at 400 about a fiftieth, for a
+// eighth of the service's CPU under load (12 %), at 400 about 3 %, for a
 // heap that may grow to five times the live data (tens of megabytes).
 const serveGCPercent = 400
 

@@ -5,6 +5,8 @@
 # two ROUNDS times in one run so both see the same machine. Loopback only.
 # Needs wrk and pgbench (Debian: apt-get install -y wrk postgresql-client).
 # SSLMODE=disable runs both sides without TLS on loopback (default: prefer).
+# CONNS sets both sides' concurrency; the service inherits GOGC and
+# GOMAXPROCS (GOMAXPROCS=1 leaves PostgreSQL a core on a 2-vCPU host).
 set -euo pipefail
 cd "$(dirname "$0")/../.."
 DB=${DB:-wbload}
@@ -35,6 +37,7 @@ TICK=$(getconf CLK_TCK)
 # (/proc/stat's first line: user nice system idle iowait irq softirq steal).
 machine() { awk '/^cpu / {print $2+$3+$4+$5+$6+$7+$8+$9, $6, $9}' /proc/stat; }
 echo "$(uptime)"
+echo "concurrency $CONNS, service GOMAXPROCS ${GOMAXPROCS:-unset (all CPUs)}, GOGC ${GOGC:-unset (serve: 400)}, sslmode ${SSLMODE:-prefer}"
 for r in $(seq 1 "$ROUNDS"); do
   before=$(cpu)
   pg0=$(pgcpu)
