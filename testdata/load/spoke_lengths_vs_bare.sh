@@ -2,6 +2,7 @@
 # POST /v1/spoke-lengths on the real server (auth, validation, geometry,
 # metrics, logging at warn) against cmd/wheelbench-bare (decode the same JSON,
 # write a small reply), alternating ROUNDS times in one run. Loopback only.
+# SERVICE_GOMAXPROCS sets the real server's GOMAXPROCS alone (default: all CPUs).
 set -euo pipefail
 cd "$(dirname "$0")/../.."
 DB=${DB:-wbload}
@@ -13,7 +14,7 @@ export WHEELBENCH_DATABASE_URL="host=127.0.0.1 user=postgres dbname=$DB"
 go build -o /tmp/wheelbench-load ./cmd/wheelbench
 go build -o /tmp/wheelbench-bare ./cmd/wheelbench-bare
 KEY=$(/tmp/wheelbench-load admin create-org --name "Load test shop" | sed -n 's/^API key: //p')
-WHEELBENCH_ADDR=127.0.0.1:18090 WHEELBENCH_LOG_LEVEL=warn /tmp/wheelbench-load serve & P1=$!
+GOMAXPROCS=${SERVICE_GOMAXPROCS:-} WHEELBENCH_ADDR=127.0.0.1:18090 WHEELBENCH_LOG_LEVEL=warn /tmp/wheelbench-load serve & P1=$!
 /tmp/wheelbench-bare -addr 127.0.0.1:18091 & P2=$!
 trap 'kill $P1 $P2 2>/dev/null || true' EXIT
 sleep 1
