@@ -219,14 +219,20 @@ func decodeStrict(raw []byte, v any) error {
 	return dec.Decode(v)
 }
 
-// specDecodeError is the field error for a spec that does not decode: at
-// the member whose type is wrong when encoding/json names it, else at /spec.
-func specDecodeError(err error) error {
-	var typ *json.UnmarshalTypeError
-	if errors.As(err, &typ) && typ.Field != "" {
-		return Invalid("/spec/"+strings.ReplaceAll(typ.Field, ".", "/"), "not a valid build spec: %s", strings.TrimPrefix(err.Error(), "json: "))
+// specPart is resolvePart for one of a spec's parts: it records the
+// catalog id in *catalogID and any error, or the part's absence when it is
+// required, in *errs.
+func specPart[T any](ctx context.Context, s *Service, orgID uuid.UUID, kind PartKind, inline *T, id *uuid.UUID, field string,
+	required bool, catalogID **uuid.UUID, errs *[]error) *T {
+	v, cid, err := resolvePart(ctx, s, orgID, kind, inline, id, field)
+	*catalogID = cid
+	switch {
+	case err != nil:
+		*errs = append(*errs, err)
+	case v == nil && required:
+		*errs = append(*errs, Invalid("/spec/"+field, "give the %s inline or as %s_id", field, field))
 	}
-	return Invalid("/spec", "not a valid build spec: %s", strings.TrimPrefix(err.Error(), "json: "))
+	return v
 }
 
 // resolveSpec turns a build spec into a compatibility input, reading the
@@ -234,37 +240,15 @@ func specDecodeError(err error) error {
 func (s *Service) resolveSpec(ctx context.Context, orgID, locationID uuid.UUID, raw json.RawMessage) (CompatibilityInput, BuildParts, string, error) {
 	var spec BuildSpec
 	if err := decodeStrict(raw, &spec); err != nil {
-		return CompatibilityInput{}, BuildParts{}, "", specDecodeError(err)
+		return CompatibilityInput{}, BuildParts{}, "", Invalid("/spec", "not a valid build spec: %s", strings.TrimPrefix(err.Error(), "json: "))
 	}
 	var parts BuildParts
 	var errs []error
-	required := func(field string, missing bool) {
-		if missing {
-			errs = append(errs, Invalid("/spec/"+field, "give the %s inline or as %s_id", field, field))
-		}
-	}
-	var (
-		hub  *fit.Hub
-		rim  *fit.Rim
-		spk  *fit.SpokeSpec
-		nip  *fit.Nipple
-		tyre *fit.Tyre
-		err  error
-	)
-	hub, parts.Hub, err = resolvePart(ctx, s, orgID, PartHub, spec.Hub, spec.HubID, "hub")
-	errs = append(errs, err)
-	required("hub", err == nil && hub == nil)
-	rim, parts.Rim, err = resolvePart(ctx, s, orgID, PartRim, spec.Rim, spec.RimID, "rim")
-	errs = append(errs, err)
-	required("rim", err == nil && rim == nil)
-	spk, parts.Spoke, err = resolvePart(ctx, s, orgID, PartSpoke, spec.Spoke, spec.SpokeID, "spoke")
-	errs = append(errs, err)
-	required("spoke", err == nil && spk == nil)
-	nip, parts.Nipple, err = resolvePart(ctx, s, orgID, PartNipple, spec.Nipple, spec.NippleID, "nipple")
-	errs = append(errs, err)
-	required("nipple", err == nil && nip == nil)
-	tyre, parts.Tyre, err = resolvePart(ctx, s, orgID, PartTyre, spec.Tyre, spec.TyreID, "tyre")
-	errs = append(errs, err)
+	hub := specPart(ctx, s, orgID, PartHub, spec.Hub, spec.HubID, "hub", true, &parts.Hub, &errs)
+	rim := specPart(ctx, s, orgID, PartRim, spec.Rim, spec.RimID, "rim", true, &parts.Rim, &errs)
+	spk := specPart(ctx, s, orgID, PartSpoke, spec.Spoke, spec.SpokeID, "spoke", true, &parts.Spoke, &errs)
+	nip := specPart(ctx, s, orgID, PartNipple, spec.Nipple, spec.NippleID, "nipple", true, &parts.Nipple, &errs)
+	tyre := specPart(ctx, s, orgID, PartTyre, spec.Tyre, spec.TyreID, "tyre", false, &parts.Tyre, &errs)
 	var washers []fit.Washer
 	if spec.Washers != nil {
 		washers = *spec.Washers
