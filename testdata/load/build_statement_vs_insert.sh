@@ -12,8 +12,9 @@ DUR=${DUR:-8}
 ROUNDS=${ROUNDS:-2}
 export PGSSLMODE=${SSLMODE:-prefer}
 q() { psql -h 127.0.0.1 -U postgres -d "$DB" -Atc "$1"; }
-read -r org loc < <(q "SELECT org_id || ' ' || location_id FROM builds LIMIT 1")
-id=$(q "SELECT id FROM builds LIMIT 1")
+row=$(q "SELECT id || ' ' || org_id || ' ' || location_id FROM builds LIMIT 1")
+[ -n "$row" ] || { echo "no build in $DB: run testdata/load/build_vs_pgbench.sh first" >&2; exit 1; }
+read -r id org loc <<<"$row"
 spec=$(q "SELECT spec FROM builds WHERE id = '$id'")
 snap=$(q "SELECT snapshot FROM builds WHERE id = '$id'")
 cdata=$(q "SELECT data FROM changes WHERE resource_id = '$id' LIMIT 1")
