@@ -371,3 +371,31 @@ func TestBuildBadBodies(t *testing.T) {
 		t.Errorf("bad bodies stored %d builds", len(list.Items))
 	}
 }
+
+// TestBuildRefusesAnotherOrganisationsLocation: a build naming another
+// organisation's location is a 422 on /location_id and writes nothing.
+// The database has no foreign key from builds to locations (migration
+// 00009), so the service's organisation-scoped check is what refuses it —
+// also when the location is in the service's cache for its own
+// organisation, as it is here after A's build.
+func TestBuildRefusesAnotherOrganisationsLocation(t *testing.T) {
+	e := newEnv(t)
+	var locA struct{ ID uuid.UUID }
+	e.want(e.do("POST", "/v1/locations", e.keyA[service.RoleAdmin], map[string]any{"name": "A bench"}), 201).json(t, &locA)
+	spec := map[string]any{"spoke_count": 32, "hub": hubDims, "rim": rimDims, "spoke": spokeDims, "nipple": nippleDims,
+		"crosses": map[string]any{"left": 3, "right": 3}, "target_tension_n": 1000}
+	e.want(e.do("POST", "/v1/builds", e.keyA[service.RoleWrite], map[string]any{"spec": spec, "location_id": locA.ID}), 201)
+	p := e.want(e.do("POST", "/v1/builds", e.keyB, map[string]any{"spec": spec, "location_id": locA.ID}), 422).problem(t)
+	if len(p.Errors) != 1 || p.Errors[0].Pointer != "/location_id" {
+		t.Errorf("problem %+v, want one error on /location_id", p)
+	}
+	var builds, changes int
+	err := e.st.Pool().QueryRow(t.Context(), `SELECT (SELECT count(*) FROM builds WHERE org_id = $1),
+	  (SELECT count(*) FROM changes WHERE org_id = $1 AND type = 'build.created')`, e.orgB).Scan(&builds, &changes)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if builds != 0 || changes != 0 {
+		t.Errorf("organisation B has %d builds and %d build.created changes, want none", builds, changes)
+	}
+}

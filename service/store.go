@@ -46,6 +46,8 @@ type Store interface {
 	// PutPartStock replaces the levels when the stock is still at version.
 	PutPartStock(ctx context.Context, orgID, partID uuid.UUID, version int64, levels []StockLevel) (PartStock, error)
 
+	// CreateBuild stores b and its change; b's location must be one of
+	// its organisation's (the store does not check it again).
 	CreateBuild(ctx context.Context, b Build) error
 	GetBuild(ctx context.Context, orgID, id uuid.UUID) (Build, error)
 	ListBuilds(ctx context.Context, orgID uuid.UUID, f BuildFilter, p Page) ([]Build, error)
