@@ -28,10 +28,12 @@ LOCATION=$(curl -fs -H "Authorization: Bearer $KEY" -H 'Content-Type: applicatio
   -d '{"name":"Load bench"}' "http://$ADDR/v1/locations" | sed -n 's/.*"id":"\([^"]*\)".*/\1/p')
 psql -h 127.0.0.1 -U postgres -d "$DB" -qc "CREATE TABLE load_rows (id bigserial PRIMARY KEY, payload text NOT NULL, created_at timestamptz NOT NULL DEFAULT now())"
 cpu() { awk '{print $14 + $15}' "/proc/$PID/stat"; }   # server user+system CPU, clock ticks
-# PostgreSQL's user+system CPU, clock ticks: every process named postgres
-# (the service's pooled backends live through a round, so none is lost).
+# PostgreSQL's user+system CPU, clock ticks: every live process named
+# postgres, plus what the postmaster has reaped from those that ended
+# (cutime+cstime: pgbench's backends, autovacuum workers), so that a process
+# ending inside a round does not take its CPU out of the round's total.
 # cat fails on processes that end while it reads; what it read still counts.
-pgcpu() { { cat /proc/[0-9]*/stat 2>/dev/null || true; } | awk '$2 == "(postgres)" {t += $14 + $15} END {print t + 0}'; }
+pgcpu() { { cat /proc/[0-9]*/stat 2>/dev/null || true; } | awk '$2 == "(postgres)" {t += $14 + $15 + $16 + $17} END {print t + 0}'; }
 TICK=$(getconf CLK_TCK)
 # Whole-machine CPU steal and I/O wait over a round, in % of all CPU time
 # (/proc/stat's first line: user nice system idle iowait irq softirq steal).
