@@ -38,8 +38,7 @@ func TestCreateBuildResponseIsTheBuild(t *testing.T) {
 	var tool struct{ ID uuid.UUID }
 	e.want(e.do("POST", "/v1/tools", w, map[string]any{"label": "front bench tensiometer", "location_id": s.loc}), 201).json(t, &tool)
 	e.publish(tool.ID, e.synthColumns(1.5, 1.8, 2.0, 2.3))
-	inline, _ := json.Marshal(map[string]any{"spoke_count": 32, "hub": hubDims, "rim": rimDims, "spoke": spokeDims, "nipple": nippleDims,
-		"crosses": map[string]any{"left": 3, "right": 3}, "target_tension_n": 1000, "stock": map[string]any{"increment_mm": 2}})
+	inline, _ := json.Marshal(inlineSpec())
 	var spaced bytes.Buffer
 	if err := json.Indent(&spaced, inline, "\n ", "\t"); err != nil {
 		t.Fatal(err)
@@ -84,9 +83,7 @@ func BenchmarkCreateBuild(b *testing.B) {
 	var loc struct{ ID string }
 	r := e.do("POST", "/v1/locations", e.keyA[service.RoleAdmin], map[string]any{"name": "bench"})
 	_ = json.Unmarshal(r.body, &loc)
-	body, _ := json.Marshal(map[string]any{"location_id": loc.ID, "spec": map[string]any{
-		"spoke_count": 32, "hub": hubDims, "rim": rimDims, "spoke": spokeDims, "nipple": nippleDims,
-		"crosses": map[string]any{"left": 3, "right": 3}, "target_tension_n": 1000, "stock": map[string]any{"increment_mm": 2}}})
+	body, _ := json.Marshal(map[string]any{"location_id": loc.ID, "spec": inlineSpec()})
 	h := e.srv.Handler()
 	key := e.keyA[service.RoleWrite]
 	b.ResetTimer()

@@ -51,6 +51,13 @@ func (e *env) putStock(part uuid.UUID, levels []map[string]any) {
 	e.want(e.do("PUT", "/v1/parts/"+part.String()+"/stock", w, map[string]any{"levels": levels}, "If-Match", st.Header.Get("ETag")), 200)
 }
 
+// inlineSpec is a build spec with every part inline (no catalog) and
+// stock lengths every 2 mm.
+func inlineSpec() map[string]any {
+	return map[string]any{"spoke_count": 32, "hub": hubDims, "rim": rimDims, "spoke": spokeDims, "nipple": nippleDims,
+		"crosses": map[string]any{"left": 3, "right": 3}, "target_tension_n": 1000, "stock": map[string]any{"increment_mm": 2}}
+}
+
 func (s shop) spec() map[string]any {
 	return map[string]any{"spoke_count": 32, "hub_id": s.hub, "rim_id": s.rim, "spoke_id": s.spoke, "nipple_id": s.nipple,
 		"tyre_id": s.tyre, "crosses": map[string]any{"left": 3, "right": 3}, "target_tension_n": 1000}
@@ -382,8 +389,7 @@ func TestBuildRefusesAnotherOrganisationsLocation(t *testing.T) {
 	e := newEnv(t)
 	var locA struct{ ID uuid.UUID }
 	e.want(e.do("POST", "/v1/locations", e.keyA[service.RoleAdmin], map[string]any{"name": "A bench"}), 201).json(t, &locA)
-	spec := map[string]any{"spoke_count": 32, "hub": hubDims, "rim": rimDims, "spoke": spokeDims, "nipple": nippleDims,
-		"crosses": map[string]any{"left": 3, "right": 3}, "target_tension_n": 1000}
+	spec := inlineSpec()
 	e.want(e.do("POST", "/v1/builds", e.keyA[service.RoleWrite], map[string]any{"spec": spec, "location_id": locA.ID}), 201)
 	p := e.want(e.do("POST", "/v1/builds", e.keyB, map[string]any{"spec": spec, "location_id": locA.ID}), 422).problem(t)
 	if len(p.Errors) != 1 || p.Errors[0].Pointer != "/location_id" {

@@ -16,24 +16,27 @@ func TestTenantsAreKept(t *testing.T) {
 	f := newHookFixture(t, "location.*")
 	l := f.location(t, "kept bench")
 	other := newOrg(t, f.st, "other shop")
-	for _, q := range []string{
-		`DELETE FROM locations WHERE id = '` + l.ID.String() + `'`,
-		`UPDATE locations SET id = gen_random_uuid() WHERE id = '` + l.ID.String() + `'`,
-		`UPDATE locations SET org_id = '` + other.String() + `' WHERE id = '` + l.ID.String() + `'`,
-		`TRUNCATE locations CASCADE`,
-		`DELETE FROM organisations WHERE id = '` + f.org.String() + `'`,
-		`UPDATE organisations SET id = gen_random_uuid() WHERE id = '` + f.org.String() + `'`,
-		`TRUNCATE organisations CASCADE`,
+	for _, c := range []struct {
+		q    string
+		args []any
+	}{
+		{`DELETE FROM locations WHERE id = $1`, []any{l.ID}},
+		{`UPDATE locations SET id = gen_random_uuid() WHERE id = $1`, []any{l.ID}},
+		{`UPDATE locations SET org_id = $2 WHERE id = $1`, []any{l.ID, other}},
+		{`TRUNCATE locations CASCADE`, nil},
+		{`DELETE FROM organisations WHERE id = $1`, []any{f.org}},
+		{`UPDATE organisations SET id = gen_random_uuid() WHERE id = $1`, []any{f.org}},
+		{`TRUNCATE organisations CASCADE`, nil},
 	} {
 		tx, err := f.pool.Begin(ctx)
 		if err != nil {
 			t.Fatal(err)
 		}
-		_, err = tx.Exec(ctx, q)
+		_, err = tx.Exec(ctx, c.q, c.args...)
 		_ = tx.Rollback(ctx)
 		var pgErr *pgconn.PgError
 		if !errors.As(err, &pgErr) || pgErr.Code != "23001" {
-			t.Errorf("%s: %v, want restrict_violation (23001)", q, err)
+			t.Errorf("%s: %v, want restrict_violation (23001)", c.q, err)
 		}
 	}
 	// A rename is still an update like any other.

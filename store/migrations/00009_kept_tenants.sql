@@ -2,9 +2,9 @@
 -- Organisations and locations are never deleted and never change their
 -- ids: the API has no way to, and these triggers make it hold in the
 -- database too. A row that once named one goes on naming it, so a write
--- can check its organisation or location once, in its own statement,
--- instead of through a foreign key. (Deliberately removing a tenant is an
--- operator's job: disable the trigger in that transaction.)
+-- can check its organisation or location once, before it writes, instead
+-- of through a foreign key on every insert. (Deliberately removing a tenant
+-- is an operator's job: disable the triggers in that transaction.)
 -- +goose StatementBegin
 CREATE FUNCTION refuse_tenant_removal() RETURNS trigger LANGUAGE plpgsql AS $$
 BEGIN
