@@ -85,8 +85,10 @@ func (s *Store) partStock(ctx context.Context, q querier, orgID, partID uuid.UUI
 	if err := q.QueryRow(ctx, `SELECT stock_version FROM parts WHERE org_id = $1 AND id = $2`, orgID, partID).Scan(&st.Version); err != nil {
 		return st, err
 	}
-	rows, _ := q.Query(ctx, `SELECT location_id, length_mm::float8, quantity FROM part_stock
-	    WHERE org_id = $1 AND part_id = $2 ORDER BY location_id, length_mm`, orgID, partID)
+	// Ordered by the numeric column itself (qualified), not by the float8
+	// output that carries its name.
+	rows, _ := q.Query(ctx, `SELECT s.location_id, s.length_mm::float8, s.quantity FROM part_stock s
+	    WHERE s.org_id = $1 AND s.part_id = $2 ORDER BY s.location_id, s.length_mm`, orgID, partID)
 	levels, err := pgx.CollectRows(rows, pgx.RowToStructByPos[service.StockLevel])
 	st.Levels = levels
 	return st, err
