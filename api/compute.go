@@ -9,6 +9,7 @@ import (
 	"strconv"
 	"sync"
 
+	"github.com/go-json-experiment/json/jsontext"
 	"github.com/labstack/echo/v4"
 
 	"wheelbench/service"
@@ -230,7 +231,7 @@ func (pt *batchPart) add(raw []byte, decoded bool) {
 	if i >= service.MaxBatchWheels || pt.notJSON >= 0 {
 		return
 	}
-	if !decoded && !json.Valid(raw) {
+	if !decoded && !jsontext.Value(raw).IsValid() { // strict: UTF-8, no duplicate names
 		pt.notJSON = i
 		return
 	}

@@ -1,98 +1,35 @@
 package api
 
 import (
-	"bytes"
 	"encoding/base64"
-	"encoding/json"
-	"errors"
 	"fmt"
 	"io"
 	"net/http"
 	"strconv"
-	"strings"
 
 	"github.com/google/uuid"
 	"github.com/labstack/echo/v4"
 
 	"wheelbench/service"
+	"wheelbench/strictjson"
 )
 
-// decode reads the body into v strictly: unknown fields, wrong types and
-// trailing data are 400s naming the field. The spec validation normally
-// catches these first; decode is the second line for anything it misses.
+// decode reads the body into v under the one strict policy (package
+// strictjson): exact-case names, no unknown or duplicate members, valid
+// UTF-8, no U+0000, no null where the spec has none, numbers in range and
+// nothing after the value; each refusal is a 400 naming the field. The
+// spec validation normally catches shape errors first; decode is the
+// second line for anything it misses.
 func decode(c echo.Context, v any) error {
 	body, err := io.ReadAll(c.Request().Body)
 	if err != nil {
-		return err // *http.MaxBytesError → 413
+		return err // a bodyError or *http.MaxBytesError, with its own status
 	}
 	return decodeBytes(body, v)
 }
 
 func decodeBytes(body []byte, v any) error {
-	dec := json.NewDecoder(bytes.NewReader(body))
-	dec.DisallowUnknownFields()
-	if err := dec.Decode(v); err != nil {
-		if strings.HasPrefix(err.Error(), "json: unknown field ") {
-			if p := unknownFieldPointer(body, v); p != "" {
-				return &validationError{status: http.StatusBadRequest, detail: "The body could not be read: see errors.",
-					fields: []FieldProblem{{Pointer: p, Message: "unknown field"}}}
-			}
-		}
-		return jsonProblem(err)
-	}
-	if dec.More() {
-		return &validationError{status: http.StatusBadRequest, detail: "The body has data after its JSON value.",
-			fields: []FieldProblem{{Pointer: "", Message: "trailing data after the JSON value"}}}
-	}
-	return nil
-}
-
-// jsonProblem turns encoding/json's errors into field problems.
-func jsonProblem(err error) error {
-	var syn *json.SyntaxError
-	var typ *json.UnmarshalTypeError
-	msg, ptr := "the body is not valid JSON", ""
-	switch {
-	case errors.As(err, &syn):
-		msg = fmt.Sprintf("the body is not valid JSON (at byte %d)", syn.Offset)
-	case errors.As(err, &typ):
-		if typ.Field != "" {
-			ptr = "/" + strings.ReplaceAll(typ.Field, ".", "/")
-		}
-		msg = fmt.Sprintf("must be %s, not %s", jsonKind(typ.Type.Kind().String()), typ.Value)
-	case strings.HasPrefix(err.Error(), "json: unknown field "):
-		name, _ := strconv.Unquote(strings.TrimPrefix(err.Error(), "json: unknown field "))
-		ptr, msg = "/"+name, "unknown field"
-	case errors.Is(err, io.EOF), errors.Is(err, io.ErrUnexpectedEOF):
-		msg = "the body is empty or cut short"
-	default:
-		var fe interface{ FieldPointer() string }
-		if errors.As(err, &fe) {
-			return err
-		}
-		var mbe *http.MaxBytesError
-		if errors.As(err, &mbe) {
-			return err
-		}
-	}
-	return &validationError{status: http.StatusBadRequest, detail: "The body could not be read: see errors.",
-		fields: []FieldProblem{{Pointer: ptr, Message: msg}}}
-}
-
-func jsonKind(k string) string {
-	switch {
-	case strings.HasPrefix(k, "int"), strings.HasPrefix(k, "uint"):
-		return "an integer"
-	case strings.HasPrefix(k, "float"):
-		return "a number"
-	case k == "string":
-		return "a string"
-	case k == "bool":
-		return "true or false"
-	case k == "slice", k == "array":
-		return "an array"
-	}
-	return "an object"
+	return strictjson.Unmarshal(body, v)
 }
 
 // pathID parses the {id} path parameter. A malformed id is treated as

@@ -41,8 +41,8 @@ func TestPartsAndStock(t *testing.T) {
 		body    map[string]any
 		pointer string
 	}{
-		"unknown field":  {map[string]any{"kind": "rim", "sku": "R1", "name": "r", "price_minor": 1, "currency": "EUR", "dimensions": map[string]any{"erd_mm": 600, "colour": "red"}}, "/dimensions"},
-		"wrong type":     {map[string]any{"kind": "rim", "sku": "R2", "name": "r", "price_minor": 1, "currency": "EUR", "dimensions": map[string]any{"erd_mm": "wide"}}, "/dimensions"},
+		"unknown field":  {map[string]any{"kind": "rim", "sku": "R1", "name": "r", "price_minor": 1, "currency": "EUR", "dimensions": map[string]any{"erd_mm": 600, "colour": "red"}}, "/dimensions/colour"},
+		"wrong type":     {map[string]any{"kind": "rim", "sku": "R2", "name": "r", "price_minor": 1, "currency": "EUR", "dimensions": map[string]any{"erd_mm": "wide"}}, "/dimensions/erd_mm"},
 		"negative size":  {map[string]any{"kind": "tyre", "sku": "T1", "name": "t", "price_minor": 1, "currency": "EUR", "dimensions": map[string]any{"bsd_mm": -622, "width_mm": 28}}, "/dimensions/bsd_mm"},
 		"bad currency":   {map[string]any{"kind": "tyre", "sku": "T2", "name": "t", "price_minor": 1, "currency": "euro", "dimensions": tyreDims}, "/currency"},
 		"negative price": {map[string]any{"kind": "tyre", "sku": "T3", "name": "t", "price_minor": -5, "currency": "EUR", "dimensions": tyreDims}, "/price_minor"},

@@ -2,7 +2,6 @@ package api
 
 import (
 	"bytes"
-	"encoding/json"
 	"net/http"
 	"strconv"
 	"time"
@@ -11,6 +10,7 @@ import (
 	"github.com/labstack/echo/v4"
 
 	"wheelbench/service"
+	"wheelbench/strictjson"
 )
 
 type toolJSON struct {
@@ -86,18 +86,22 @@ func (s *Server) getTool(c echo.Context) error {
 	return c.JSON(http.StatusOK, toToolJSON(t))
 }
 
-// nullableFloat tells an absent field (Set false) from null (Set, Value nil).
+// nullableFloat tells an absent field (Set false) from null (Set, Value
+// nil): the one member whose null the spec allows (it removes the value).
 type nullableFloat struct {
 	Set   bool
 	Value *float64
 }
+
+// JSONNullable lets null through the strict decoder to UnmarshalJSON.
+func (n *nullableFloat) JSONNullable() {}
 
 func (n *nullableFloat) UnmarshalJSON(b []byte) error {
 	n.Set = true
 	if bytes.Equal(b, []byte("null")) {
 		return nil
 	}
-	return json.Unmarshal(b, &n.Value)
+	return strictjson.Unmarshal(b, &n.Value)
 }
 
 type toolPatchJSON struct {

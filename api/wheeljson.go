@@ -8,15 +8,15 @@ import (
 	"wheelbench/service/geometry"
 )
 
-// A fast path for decoding batch wheels. encoding/json spends about 15 µs
-// on one wheel (reflection, a validity pre-scan, pointer fields); 10,000 of
-// them would eat the batch's whole time budget. wheelParser decodes the
-// plain, common form of a wheel — exact lower-case member names, no
-// duplicates, no null, no escapes or non-ASCII in strings — by hand and
-// gives up (ok = false) on anything else, which then goes through
-// decodeBytes and encoding/json exactly as before. So the fast path never
-// decides an error: it either yields the Wheel encoding/json would, or
-// steps aside. FuzzWheelParser checks that against encoding/json.
+// A fast path for decoding batch wheels. A general decoder spends about
+// 15 µs on one wheel (reflection, a validity pre-scan, pointer fields);
+// 10,000 of them would eat the batch's whole time budget. wheelParser
+// decodes the plain, common form of a wheel — exact lower-case member
+// names, no duplicates, no null, no escapes or non-ASCII in strings — by
+// hand and gives up (ok = false) on anything else, which then goes through
+// decodeBytes, the strict decoder every route uses (package strictjson).
+// So the fast path never decides an error: it either yields the Wheel the
+// strict decoder would, or steps aside. FuzzWheelParser checks that.
 
 type wheelParser struct {
 	b   []byte

@@ -10,11 +10,13 @@ import (
 	"strings"
 	"testing"
 
+	"github.com/go-json-experiment/json/jsontext"
+
 	"wheelbench/service"
 	"wheelbench/service/geometry"
 )
 
-// wheelSeeds are bodies the fast path must agree on with encoding/json:
+// wheelSeeds are bodies the fast path must agree on with the strict decoder:
 // plain ones it takes, and unusual ones it must decline or get right.
 var wheelSeeds = []string{
 	`{ "spoke_count": 32,
@@ -41,17 +43,17 @@ var wheelSeeds = []string{
 }
 
 // agree fails unless the fast path either declines or decodes exactly what
-// encoding/json (strict, as decodeBytes) decodes.
+// the strict decoder (decodeBytes, package strictjson) decodes.
 func agree(t *testing.T, body []byte) {
 	var fast, slow geometry.Wheel
 	if !parseWheel(body, &fast, &arena{}) {
 		return
 	}
 	if err := decodeBytes(body, &slow); err != nil {
-		t.Fatalf("fast path took %q, encoding/json refuses it: %v", body, err)
+		t.Fatalf("fast path took %q, the strict decoder refuses it: %v", body, err)
 	}
 	if !reflect.DeepEqual(fast, slow) {
-		t.Fatalf("fast path and encoding/json disagree on %q:\n%+v\n%+v", body, fast, slow)
+		t.Fatalf("fast path and the strict decoder disagree on %q:\n%+v\n%+v", body, fast, slow)
 	}
 }
 
@@ -240,7 +242,7 @@ func referenceBatch(s *Server, body []byte, instance string) ([]byte, error) {
 		if parseWheel(raw, &wheels[i], nil) {
 			continue
 		}
-		if !json.Valid(raw) {
+		if !jsontext.Value(raw).IsValid() {
 			return nil, &validationError{status: 400, detail: "The body could not be read: see errors.",
 				fields: []FieldProblem{{Pointer: "/wheels/" + strconv.Itoa(i), Message: "is not valid JSON"}}}
 		}

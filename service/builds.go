@@ -1,7 +1,6 @@
 package service
 
 import (
-	"bytes"
 	"context"
 	"encoding/json"
 	"errors"
@@ -15,6 +14,7 @@ import (
 	"wheelbench/service/fit"
 	"wheelbench/service/geometry"
 	"wheelbench/service/spoke"
+	"wheelbench/strictjson"
 )
 
 // BuildStatus is where a build is in the shop.
@@ -204,19 +204,12 @@ func resolvePart[T any](ctx context.Context, s *Service, orgID uuid.UUID, kind P
 			return nil, nil, Unprocessable("/spec/"+field+"_id", "part %s is a %s, not a %s", id, p.Kind, kind)
 		}
 		dims := new(T)
-		if err := decodeStrict(p.Dimensions, dims); err != nil {
-			return nil, nil, Unprocessable("/spec/"+field+"_id", "part %s's dimensions do not describe a %s: %s", id, kind, strings.TrimPrefix(err.Error(), "json: "))
+		if err := strictjson.Unmarshal(p.Dimensions, dims); err != nil {
+			return nil, nil, Unprocessable("/spec/"+field+"_id", "part %s's dimensions do not describe a %s", id, kind)
 		}
 		return dims, id, nil
 	}
 	return inline, nil, nil
-}
-
-// decodeStrict decodes one JSON value into v, refusing unknown members.
-func decodeStrict(raw []byte, v any) error {
-	dec := json.NewDecoder(bytes.NewReader(raw))
-	dec.DisallowUnknownFields()
-	return dec.Decode(v)
 }
 
 // specPart is resolvePart for one of a spec's parts: it records the
@@ -239,8 +232,8 @@ func specPart[T any](ctx context.Context, s *Service, orgID uuid.UUID, kind Part
 // catalog parts it names.
 func (s *Service) resolveSpec(ctx context.Context, orgID, locationID uuid.UUID, raw json.RawMessage) (CompatibilityInput, BuildParts, string, error) {
 	var spec BuildSpec
-	if err := decodeStrict(raw, &spec); err != nil {
-		return CompatibilityInput{}, BuildParts{}, "", Invalid("/spec", "not a valid build spec: %s", strings.TrimPrefix(err.Error(), "json: "))
+	if err := strictjson.Unmarshal(raw, &spec); err != nil {
+		return CompatibilityInput{}, BuildParts{}, "", prefixPointers(err, "/spec")
 	}
 	var parts BuildParts
 	var errs []error

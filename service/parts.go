@@ -15,6 +15,7 @@ import (
 	"github.com/google/uuid"
 
 	"wheelbench/service/fit"
+	"wheelbench/strictjson"
 )
 
 // PartKind is what a catalog part is.
@@ -130,10 +131,8 @@ func decodeDimensions(kind PartKind, raw json.RawMessage) (json.RawMessage, erro
 	if len(bytes.TrimSpace(raw)) == 0 || bytes.Equal(bytes.TrimSpace(raw), []byte("null")) {
 		return nil, Invalid("/dimensions", "dimensions are required: the %s object the compatibility check takes", kind)
 	}
-	dec := json.NewDecoder(bytes.NewReader(raw))
-	dec.DisallowUnknownFields()
-	if err := dec.Decode(target); err != nil {
-		return nil, Invalid("/dimensions", "not a valid %s: %s", kind, strings.TrimPrefix(err.Error(), "json: "))
+	if err := strictjson.Unmarshal(raw, target); err != nil {
+		return nil, prefixPointers(err, "/dimensions")
 	}
 	// Every number in the object must be finite and not negative; sizes the
 	// fit check needs are checked there when a build uses the part.

@@ -1,0 +1,262 @@
+// Package strictjson is wheelbench's one policy for reading JSON that comes
+// from outside: request bodies in api/ and the documents nested in them
+// (a build's spec, a part's dimensions) in service/. It decodes with the
+// semantics of encoding/json/v2 (github.com/go-json-experiment/json) and
+// refuses, with the RFC 6901 pointer of the offending value:
+//
+//   - member names in another letter case, unknown members and duplicate
+//     names;
+//   - invalid UTF-8, and the character U+0000 in any string (PostgreSQL's
+//     text cannot hold it, and no field of ours has a use for it);
+//   - null, except into a type that says it takes null (Nullable);
+//   - numbers beyond the range of their Go type (1e400 for a float64);
+//   - anything after the one JSON value.
+//
+// Its errors are *Error values: a pointer and a message written for the
+// integrator, never a Go type name. It imports only the JSON library.
+package strictjson
+
+import (
+	"bytes"
+	"encoding"
+	"errors"
+	"fmt"
+	"io"
+	"math"
+	"reflect"
+	"strconv"
+	"strings"
+
+	"github.com/go-json-experiment/json"
+	"github.com/go-json-experiment/json/jsontext"
+)
+
+// Error is one refused value: Pointer is an RFC 6901 pointer into the
+// document ("" for the document itself), Message says what is wrong.
+type Error struct {
+	Pointer string
+	Message string
+}
+
+func (e *Error) Error() string { return e.Pointer + ": " + e.Message }
+
+// FieldPointer returns the JSON pointer of the refused value.
+func (e *Error) FieldPointer() string { return e.Pointer }
+
+// FieldMessage returns the message without the pointer.
+func (e *Error) FieldMessage() string { return e.Message }
+
+// IsUnprocessable is false: a document the policy refuses is malformed (400).
+func (e *Error) IsUnprocessable() bool { return false }
+
+// Nullable is implemented by the few types that give JSON null a meaning
+// (a PATCH member whose null removes a value). Every other type refuses null.
+type Nullable interface {
+	JSONNullable()
+}
+
+var nullableType = reflect.TypeFor[Nullable]()
+
+// refuseNull runs before the default decoding of every value: it refuses
+// null unless the destination takes it, and otherwise steps aside.
+var refuseNull = json.WithUnmarshalers(json.UnmarshalFromFunc(func(dec *jsontext.Decoder, v any) error {
+	if dec.PeekKind() != 'n' {
+		return errors.ErrUnsupported
+	}
+	if t := reflect.TypeOf(v); t != nil && (t.Implements(nullableType) || t.Elem().Implements(nullableType)) {
+		return errors.ErrUnsupported
+	}
+	return errNull
+}))
+
+var errNull = errors.New("must not be null")
+
+var options = json.JoinOptions(json.RejectUnknownMembers(true), refuseNull)
+
+// Unmarshal decodes the one JSON value in b into v under the policy. v must
+// be a non-nil pointer. On error v may be partly filled.
+func Unmarshal(b []byte, v any) error {
+	if err := json.Unmarshal(b, v, options); err != nil {
+		return translate(err)
+	}
+	return checkNUL(b)
+}
+
+// Check reads b as one JSON value under the policy's rules that need no Go
+// type: valid JSON, UTF-8, no duplicate names, no U+0000, every number
+// within the range of a float64. It decodes nothing.
+func Check(b []byte) error {
+	dec := jsontext.NewDecoder(bytes.NewReader(b))
+	for {
+		tok, err := dec.ReadToken()
+		if err != nil {
+			return translate(err)
+		}
+		switch tok.Kind() {
+		case '0':
+			if f, err := tok.Float(); err != nil || math.IsInf(f, 0) {
+				return &Error{Pointer: string(dec.StackPointer()), Message: outOfRangeFloat}
+			}
+		case '"':
+			if strings.IndexByte(tok.String(), 0) >= 0 {
+				return &Error{Pointer: string(dec.StackPointer()), Message: nulMessage}
+			}
+		}
+		if dec.StackDepth() == 0 {
+			break
+		}
+	}
+	if _, err := dec.ReadToken(); err == nil {
+		return &Error{Message: "the body has data after its JSON value"}
+	} else if !errors.Is(err, io.EOF) {
+		return translate(err)
+	}
+	return nil
+}
+
+const (
+	nulMessage      = "must not contain the character U+0000"
+	outOfRangeFloat = "must be a number within the range of a double (about ±1.8e308)"
+)
+
+// checkNUL finds a U+0000 in any string or member name of b, which is
+// valid JSON. The escape \u0000 is the only way to write one (a raw NUL
+// byte is not valid JSON), so a body without that text is passed at once.
+func checkNUL(b []byte) error {
+	if !bytes.Contains(b, []byte(`\u0000`)) {
+		return nil
+	}
+	dec := jsontext.NewDecoder(bytes.NewReader(b))
+	for {
+		tok, err := dec.ReadToken()
+		if err != nil {
+			return nil // already decoded once: only the end is left
+		}
+		if tok.Kind() == '"' && strings.IndexByte(tok.String(), 0) >= 0 {
+			return &Error{Pointer: string(dec.StackPointer()), Message: nulMessage}
+		}
+	}
+}
+
+// translate turns the JSON library's errors into *Error. An error that
+// is not the library's (one a type's own decoder returned) keeps its
+// pointer and text when it already has a pointer of its own.
+func translate(err error) error {
+	var sem *json.SemanticError
+	if errors.As(err, &sem) {
+		return semantic(sem)
+	}
+	var fe *Error
+	if errors.As(err, &fe) {
+		return fe
+	}
+	var syn *jsontext.SyntacticError
+	if errors.As(err, &syn) {
+		ptr := string(syn.JSONPointer)
+		switch {
+		case errors.Is(syn.Err, jsontext.ErrDuplicateName):
+			return &Error{Pointer: ptr, Message: "duplicate member name"}
+		case syn.Err != nil && strings.Contains(syn.Err.Error(), "UTF-8"):
+			return &Error{Pointer: ptr, Message: "is not valid UTF-8"}
+		case errors.Is(syn.Err, io.ErrUnexpectedEOF):
+			return &Error{Message: "the body is empty or cut short"}
+		case syn.Err != nil && strings.Contains(syn.Err.Error(), "after top-level value"):
+			return &Error{Message: "the body has data after its JSON value"}
+		}
+		return &Error{Pointer: ptr, Message: fmt.Sprintf("is not valid JSON (at byte %d)", syn.ByteOffset)}
+	}
+	if errors.Is(err, io.EOF) || errors.Is(err, io.ErrUnexpectedEOF) {
+		return &Error{Message: "the body is empty or cut short"}
+	}
+	return &Error{Message: "the body could not be read"}
+}
+
+func semantic(e *json.SemanticError) error {
+	ptr := string(e.JSONPointer)
+	var inner *Error
+	switch {
+	case errors.As(e.Err, &inner):
+		// A type's own decoder used this package: its pointer is relative
+		// to the value it was given.
+		return &Error{Pointer: ptr + inner.Pointer, Message: inner.Message}
+	case errors.Is(e.Err, json.ErrUnknownName):
+		return &Error{Pointer: ptr, Message: "unknown member (names are exact and case-sensitive)"}
+	case errors.Is(e.Err, errNull):
+		return &Error{Pointer: ptr, Message: "must not be null"}
+	}
+	want := wantOf(e.GoType)
+	switch {
+	case e.JSONKind != 0 && e.Err == nil:
+		return &Error{Pointer: ptr, Message: fmt.Sprintf("must be %s, not %s", want, kindName(e.JSONKind))}
+	case errors.Is(e.Err, strconv.ErrRange) || (e.Err != nil && strings.Contains(e.Err.Error(), "out of range")):
+		if isFloat(e.GoType) {
+			return &Error{Pointer: ptr, Message: outOfRangeFloat}
+		}
+		return &Error{Pointer: ptr, Message: fmt.Sprintf("must be %s within range", want)}
+	case errors.Is(e.Err, strconv.ErrSyntax) || (e.Err != nil && strings.Contains(e.Err.Error(), "invalid syntax")):
+		return &Error{Pointer: ptr, Message: "must be " + want}
+	}
+	return &Error{Pointer: ptr, Message: "must be " + want}
+}
+
+func isFloat(t reflect.Type) bool {
+	for t != nil && t.Kind() == reflect.Pointer {
+		t = t.Elem()
+	}
+	return t != nil && (t.Kind() == reflect.Float64 || t.Kind() == reflect.Float32)
+}
+
+var textUnmarshaler = reflect.TypeFor[encoding.TextUnmarshaler]()
+
+// wantOf names what a Go type takes, in JSON's words.
+func wantOf(t reflect.Type) string {
+	for t != nil && t.Kind() == reflect.Pointer {
+		t = t.Elem()
+	}
+	if t == nil {
+		return "a valid value"
+	}
+	if t.Name() == "UUID" {
+		return "a UUID such as 0192f5e2-7c1a-7b3e-9d4f-2a6b8c0d1e2f"
+	}
+	if t.Name() == "Time" && t.PkgPath() == "time" {
+		return "an RFC 3339 time such as 2026-12-01T10:00:00Z"
+	}
+	if reflect.PointerTo(t).Implements(textUnmarshaler) {
+		return "a string"
+	}
+	switch t.Kind() {
+	case reflect.Int, reflect.Int8, reflect.Int16, reflect.Int32, reflect.Int64,
+		reflect.Uint, reflect.Uint8, reflect.Uint16, reflect.Uint32, reflect.Uint64:
+		return "an integer"
+	case reflect.Float32, reflect.Float64:
+		return "a number"
+	case reflect.String:
+		return "a string"
+	case reflect.Bool:
+		return "true or false"
+	case reflect.Slice, reflect.Array:
+		return "an array"
+	case reflect.Struct, reflect.Map:
+		return "an object"
+	}
+	return "a valid value"
+}
+
+func kindName(k jsontext.Kind) string {
+	switch k {
+	case 'n':
+		return "null"
+	case 't', 'f':
+		return "true or false"
+	case '"':
+		return "a string"
+	case '0':
+		return "a number"
+	case '{':
+		return "an object"
+	case '[':
+		return "an array"
+	}
+	return "another kind of value"
+}
