@@ -14,6 +14,7 @@ import (
 
 	"wheelbench/service"
 	"wheelbench/service/geometry"
+	"wheelbench/strictjson"
 )
 
 // BatchBodyLimit is the body limit of POST /v1/spoke-lengths/batch.
@@ -26,9 +27,6 @@ const BatchBodyLimit = 16 << 20
 // TestOwnBodyCheckAgreesWithSpec holds them to it. The generic validation
 // cost more than the rest of the request put together.
 func (s *Server) computeSpokeLengths(c echo.Context) error {
-	if !isJSON(c.Request().Header.Get(echo.HeaderContentType)) {
-		return &httpProblem{status: http.StatusUnsupportedMediaType, detail: "Send the body as application/json."}
-	}
 	body, err := readBody(c.Request())
 	if err != nil {
 		return err // *http.MaxBytesError → 413
@@ -84,9 +82,6 @@ type batchRequest struct {
 // written once. What comes out is what splitting the whole body in one
 // pass, decoding, computing and encoding each wheel in order would give.
 func (s *Server) computeSpokeLengthsBatch(c echo.Context) error {
-	if !isJSON(c.Request().Header.Get(echo.HeaderContentType)) {
-		return &httpProblem{status: http.StatusUnsupportedMediaType, detail: "Send the body as application/json."}
-	}
 	body, err := readBatchBody(c.Request())
 	if err != nil {
 		return err // *http.MaxBytesError → 413
@@ -135,6 +130,9 @@ func (s *Server) batchAnswer(body []byte, instance string, cpus, minPart int) ([
 	base := 0
 	for _, pt := range parts {
 		if pt.notJSON >= 0 { // the body as a whole is not JSON: no batch at all
+			if err := strictjson.Check(body); err != nil {
+				return nil, err // where exactly, and why
+			}
 			return nil, &validationError{status: http.StatusBadRequest, detail: "The body could not be read: see errors.",
 				fields: []FieldProblem{{Pointer: "/wheels/" + strconv.Itoa(base+pt.notJSON), Message: "is not valid JSON"}}}
 		}
@@ -510,13 +508,9 @@ func readBatchBody(r *http.Request) ([]byte, error) {
 		return io.ReadAll(r.Body)
 	}
 	b := getBuf(bodyPool, int(r.ContentLength))[:r.ContentLength]
-	n, err := io.ReadFull(r.Body, b)
-	if err == io.ErrUnexpectedEOF {
-		return b[:n], nil
-	}
-	if err != nil {
+	if _, err := io.ReadFull(r.Body, b); err != nil {
 		putBuf(bodyPool, b)
-		return nil, err
+		return nil, shortBody(err)
 	}
 	return b, nil
 }
@@ -528,15 +522,20 @@ func readBody(r *http.Request) ([]byte, error) {
 		return io.ReadAll(r.Body)
 	}
 	b := make([]byte, r.ContentLength)
-	n, err := io.ReadFull(r.Body, b)
-	if err == io.ErrUnexpectedEOF {
-		return b[:n], nil
-	}
-	if err != nil {
-		return nil, err
+	if _, err := io.ReadFull(r.Body, b); err != nil {
+		return nil, shortBody(err) // shorter than declared, or late
 	}
 	// Anything past the declared length is not read: net/http stops there.
 	return b, nil
+}
+
+// shortBody is err, or for a reader that ended before the declared length
+// the 400 that bodyReader gives when the connection says so.
+func shortBody(err error) error {
+	if err == io.ErrUnexpectedEOF {
+		return &bodyError{status: http.StatusBadRequest, detail: "The body ended before its declared Content-Length."}
+	}
+	return err
 }
 
 // split cuts [0, n) into one contiguous part per CPU, or a single part when

@@ -118,7 +118,8 @@ func (r response) problem(t testing.TB) api.Problem {
 }
 
 // do sends a request with the key (none when empty) and a body: a string
-// is sent as is, anything else as JSON. Every response is validated against
+// is sent as is, anything else as JSON. hdr are name, value pairs; an
+// empty value removes the header (Content-Type included). Every response is validated against
 // the OpenAPI document: status, headers and body.
 func (e *env) do(method, path, key string, body any, hdr ...string) response {
 	e.t.Helper()
@@ -151,6 +152,10 @@ func (e *env) do(method, path, key string, body any, hdr ...string) response {
 		req.Header.Set("Authorization", "Bearer "+key)
 	}
 	for i := 0; i+1 < len(hdr); i += 2 {
+		if hdr[i+1] == "" {
+			req.Header.Del(hdr[i]) // "" sends no such header at all
+			continue
+		}
 		req.Header.Set(hdr[i], hdr[i+1])
 	}
 	res, err := e.http.Client().Do(req)

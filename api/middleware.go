@@ -6,13 +6,16 @@ import (
 	"io"
 	"log/slog"
 	"net/http"
+	"os"
 	"strings"
 	"time"
+	"unicode/utf8"
 
 	"github.com/getkin/kin-openapi/openapi3filter"
 	"github.com/labstack/echo/v4"
 
 	"wheelbench/service"
+	"wheelbench/strictjson"
 )
 
 // principal returns the authenticated caller of c.
@@ -66,8 +69,13 @@ func unauthorized(detail string) error {
 	return &httpProblem{status: http.StatusUnauthorized, detail: detail}
 }
 
-// validateRequest checks every /v1 request against the OpenAPI document
-// before a handler runs.
+// validateRequest checks every /v1 request before a handler runs: query
+// strings are valid UTF-8 without U+0000; a route that takes a body takes
+// only application/json (415 otherwise); a body the spec validates is
+// first read under the strict JSON policy (strictjson.Check: syntax,
+// UTF-8, duplicate names, U+0000, numbers in range), so that what the spec
+// validator sees is what the handler will decode; then the OpenAPI
+// document judges the request.
 func (s *Server) validateRequest(next echo.HandlerFunc) echo.HandlerFunc {
 	opts := &openapi3filter.Options{
 		MultiError:         true,
@@ -84,8 +92,27 @@ func (s *Server) validateRequest(next echo.HandlerFunc) echo.HandlerFunc {
 		if err != nil {
 			return echo.ErrNotFound
 		}
+		if err := checkQuery(req); err != nil {
+			return err
+		}
+		r, _ := s.routeFor(req.Method, c.Path())
 		o, vreq := opts, req
-		if r, ok := s.routeFor(req.Method, c.Path()); ok && (r.OwnBodyCheck || r.SpecCheckOnError) {
+		if route.Operation.RequestBody != nil {
+			if !isJSON(req.Header.Get(echo.HeaderContentType)) {
+				return &httpProblem{status: http.StatusUnsupportedMediaType, detail: "Send the body as application/json."}
+			}
+			if !r.OwnBodyCheck && !r.SpecCheckOnError {
+				body, err := io.ReadAll(req.Body)
+				if err != nil {
+					return err
+				}
+				if err := strictjson.Check(body); err != nil {
+					return err
+				}
+				req.Body = io.NopCloser(bytes.NewReader(body))
+			}
+		}
+		if r.OwnBodyCheck || r.SpecCheckOnError {
 			// The body is judged later; hide it, or the validator's security
 			// step would read all of it into memory for nothing.
 			o = &noBody
@@ -103,8 +130,32 @@ func (s *Server) validateRequest(next echo.HandlerFunc) echo.HandlerFunc {
 	}
 }
 
-// limitBody caps each request body at its route's limit: 413 when the
-// declared length is over it, and a reader that fails past it otherwise.
+// checkQuery refuses query names and values that are not valid UTF-8 or
+// hold U+0000: no parameter of ours takes them, and the database cannot
+// compare text with them.
+func checkQuery(req *http.Request) error {
+	for name, vals := range req.URL.Query() {
+		bad := !utf8.ValidString(name) || strings.IndexByte(name, 0) >= 0
+		for _, v := range vals {
+			bad = bad || !utf8.ValidString(v) || strings.IndexByte(v, 0) >= 0
+		}
+		if bad {
+			if !utf8.ValidString(name) {
+				name = strings.ToValidUTF8(name, "\ufffd")
+			}
+			return &validationError{status: http.StatusBadRequest, detail: "The request has invalid parameters: see errors.",
+				fields: []FieldProblem{{Pointer: "query:" + strings.ReplaceAll(name, "\x00", ""), Message: "must be valid UTF-8 without the character U+0000"}}}
+		}
+	}
+	return nil
+}
+
+// limitBody caps each request body at its route's limit — 413 when the
+// declared length is over it, and a reader that fails past it otherwise —
+// and bounds how long the body may take to arrive: reading it past the
+// request timeout fails with a 408, and a body that ends before its
+// declared Content-Length with a 400 (bodyReader). Neither is a fault of
+// ours, so neither is logged as one.
 func (s *Server) limitBody(next echo.HandlerFunc) echo.HandlerFunc {
 	return func(c echo.Context) error {
 		limit := int64(DefaultBodyLimit)
@@ -115,10 +166,42 @@ func (s *Server) limitBody(next echo.HandlerFunc) echo.HandlerFunc {
 		if req.ContentLength > limit {
 			return &http.MaxBytesError{Limit: limit}
 		}
-		req.Body = http.MaxBytesReader(c.Response(), req.Body, limit)
+		if req.Body != nil && req.Body != http.NoBody {
+			// The deadline covers the connection's reads of this request;
+			// net/http sets the next request's own. A writer that cannot
+			// take it (a test recorder) leaves the body unbounded in time.
+			_ = http.NewResponseController(c.Response()).SetReadDeadline(time.Now().Add(s.timeout))
+		}
+		req.Body = &bodyReader{r: http.MaxBytesReader(c.Response(), req.Body, limit)}
 		return next(c)
 	}
 }
+
+// bodyReader turns the errors of reading a request body that are the
+// client's doing into bodyErrors with their status.
+type bodyReader struct{ r io.ReadCloser }
+
+func (b *bodyReader) Read(p []byte) (int, error) {
+	n, err := b.r.Read(p)
+	switch {
+	case err == nil, err == io.EOF:
+	case errors.Is(err, os.ErrDeadlineExceeded):
+		err = &bodyError{status: http.StatusRequestTimeout, detail: "The body did not arrive within the request timeout; send it whole and promptly."}
+	case errors.Is(err, io.ErrUnexpectedEOF):
+		err = &bodyError{status: http.StatusBadRequest, detail: "The body ended before its declared Content-Length."}
+	}
+	return n, err
+}
+
+func (b *bodyReader) Close() error { return b.r.Close() }
+
+// bodyError is a body that could not be read through the client's doing.
+type bodyError struct {
+	status int
+	detail string
+}
+
+func (e *bodyError) Error() string { return e.detail }
 
 // logRequests writes one structured line per request.
 func (s *Server) logRequests(next echo.HandlerFunc) echo.HandlerFunc {
@@ -169,6 +252,10 @@ func (s *Server) specCheckOnError(next echo.HandlerFunc) echo.HandlerFunc {
 		}
 		if p, _ := toProblem(herr); p.Status != http.StatusBadRequest && p.Status != http.StatusUnprocessableEntity {
 			return herr
+		}
+		// As on every other route, the JSON policy speaks before the spec.
+		if err := strictjson.Check(body); err != nil {
+			return err
 		}
 		check := req.Clone(req.Context())
 		check.Body = io.NopCloser(bytes.NewReader(body))

@@ -88,6 +88,10 @@ func collectFieldErrors(err error, out []fieldError) []fieldError {
 // toProblem turns any error into a problem; internal reports whether it is a
 // server fault (logged, with a generic title).
 func toProblem(err error) (p Problem, internal bool) {
+	var be *bodyError
+	if errors.As(err, &be) {
+		return Problem{Status: be.status, Title: http.StatusText(be.status), Detail: be.detail}, false
+	}
 	var hp *httpProblem
 	if errors.As(err, &hp) {
 		return Problem{Status: hp.status, Title: http.StatusText(hp.status), Detail: hp.detail}, false
@@ -179,6 +183,7 @@ func fromSpecError(err error) error {
 	var fields []FieldProblem
 	status := http.StatusBadRequest
 	detail := "The request does not match the API description: see errors."
+	var bodyErr *bodyError
 	var add func(e error)
 	add = func(e error) {
 		if me, ok := e.(openapi3.MultiError); ok {
@@ -189,6 +194,11 @@ func fromSpecError(err error) error {
 		}
 		var re *openapi3filter.RequestError
 		if errors.As(e, &re) {
+			var be *bodyError
+			if errors.As(e, &be) {
+				bodyErr = be
+				return
+			}
 			var mbe *http.MaxBytesError
 			if errors.As(e, &mbe) {
 				status = http.StatusRequestEntityTooLarge
@@ -250,6 +260,9 @@ func fromSpecError(err error) error {
 		fields = append(fields, FieldProblem{Pointer: "", Message: e.Error()})
 	}
 	add(err)
+	if bodyErr != nil {
+		return bodyErr
+	}
 	if status == http.StatusBadRequest && len(fields) == 0 {
 		return nil
 	}

@@ -50,6 +50,8 @@ type Server struct {
 	byKey  map[string]Route // "METHOD echo-path"
 	m      *metrics
 	echo   *echo.Echo
+	// timeout is RequestTimeout: each request's work, and its body's arrival.
+	timeout time.Duration
 }
 
 // Route is one operation: the spec's method and path, the role it needs,
@@ -109,7 +111,7 @@ func New(cfg Config) (*Server, error) {
 		reg := prometheus.NewRegistry()
 		cfg.Registry, cfg.Gatherer = reg, reg
 	}
-	s := &Server{svc: cfg.Service, log: cfg.Logger, doc: doc, router: router}
+	s := &Server{svc: cfg.Service, log: cfg.Logger, doc: doc, router: router, timeout: cfg.RequestTimeout}
 	s.m = newMetrics(cfg.Registry)
 
 	e := echo.New()

@@ -14,6 +14,7 @@ import (
 
 	"wheelbench/service"
 	"wheelbench/service/geometry"
+	"wheelbench/strictjson"
 )
 
 // wheelSeeds are bodies the fast path must agree on with the strict decoder:
@@ -217,9 +218,10 @@ func splitWheels(b []byte) (items [][]byte, ok bool) {
 
 // referenceBatch is the batch answer as the handler computed it before it
 // cut the body into parts, step by step and serially: split the envelope
-// (or let encoding/json do it), check the count, decode every wheel (fast
-// path, else encoding/json), refuse the body at its first wheel that is
-// not JSON, compute all, encode the slots in order.
+// (or let the strict decoder do it), check the count, decode every wheel
+// (fast path, else the strict decoder), refuse the body at its first wheel
+// that is not JSON (saying where by the JSON policy), compute all, encode
+// the slots in order.
 func referenceBatch(s *Server, body []byte, instance string) ([]byte, error) {
 	raws, ok := splitWheels(body)
 	if !ok {
@@ -243,6 +245,9 @@ func referenceBatch(s *Server, body []byte, instance string) ([]byte, error) {
 			continue
 		}
 		if !jsontext.Value(raw).IsValid() {
+			if err := strictjson.Check(body); err != nil {
+				return nil, err
+			}
 			return nil, &validationError{status: 400, detail: "The body could not be read: see errors.",
 				fields: []FieldProblem{{Pointer: "/wheels/" + strconv.Itoa(i), Message: "is not valid JSON"}}}
 		}

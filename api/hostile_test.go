@@ -1,0 +1,501 @@
+package api_test
+
+import (
+	"bytes"
+	"encoding/json"
+	"fmt"
+	"slices"
+	"strings"
+	"testing"
+
+	"github.com/google/uuid"
+
+	"wheelbench/service"
+)
+
+// bodyCase is a request to one route with a body that the route accepts
+// (answering ok): the base every hostile variant below is made from.
+type bodyCase struct {
+	path string
+	key  string
+	body map[string]any
+	hdr  []string
+	ok   int
+}
+
+// bodyCases makes, for every route with a request body, a request it
+// accepts, creating what it needs in organisation A. TestBodyCasesCoverEveryRoute
+// fails for a route that has none.
+func bodyCases(e *env) map[string]func() bodyCase {
+	admin, w, r := e.keyA[service.RoleAdmin], e.keyA[service.RoleWrite], e.keyA[service.RoleRead]
+	var s *shop
+	theShop := func() shop {
+		if s == nil {
+			sh := e.newShop(10)
+			s = &sh
+		}
+		return *s
+	}
+	etag := func(path string) []string {
+		return []string{"If-Match", e.want(e.do("GET", path, admin, nil), 200).Header.Get("ETag")}
+	}
+	build := func() uuid.UUID {
+		id, _ := buildFixture(nil)(e)
+		return id
+	}
+	wheel := func() map[string]any {
+		var m map[string]any
+		if err := json.Unmarshal([]byte(contractBody), &m); err != nil {
+			e.t.Fatal(err)
+		}
+		return m
+	}
+	compat := func() map[string]any {
+		var m map[string]any
+		if err := json.Unmarshal([]byte(roadFrontBody), &m); err != nil {
+			e.t.Fatal(err)
+		}
+		return m
+	}
+	return map[string]func() bodyCase{
+		"POST /v1/locations": func() bodyCase {
+			return bodyCase{path: "/v1/locations", key: admin, ok: 201,
+				body: map[string]any{"name": "Side bench", "code": "SB", "timezone": "UTC", "address": "1 Any Street", "tax_rate_ppm": 0}}
+		},
+		"PATCH /v1/locations/{id}": func() bodyCase {
+			p := "/v1/locations/" + e.newLocation().String()
+			return bodyCase{path: p, key: admin, ok: 200, hdr: etag(p), body: map[string]any{"name": "renamed", "address": "2 Any Street"}}
+		},
+		"POST /v1/api-keys": func() bodyCase {
+			return bodyCase{path: "/v1/api-keys", key: admin, ok: 201, body: map[string]any{"role": "read", "name": "till"}}
+		},
+		"POST /v1/parts": func() bodyCase {
+			return bodyCase{path: "/v1/parts", key: w, ok: 201, body: map[string]any{"kind": "spoke", "sku": "SPK-" + uuid.NewString()[:8],
+				"name": "a spoke", "price_minor": 60, "currency": "EUR", "dimensions": spokeDims}}
+		},
+		"PATCH /v1/parts/{id}": func() bodyCase {
+			p := "/v1/parts/" + e.createPart("tyre", "TYR-"+uuid.NewString()[:8], 100, tyreDims).String()
+			return bodyCase{path: p, key: w, ok: 200, hdr: etag(p), body: map[string]any{"name": "renamed", "price_minor": 120}}
+		},
+		"PUT /v1/parts/{id}/stock": func() bodyCase {
+			sh := theShop()
+			p := "/v1/parts/" + sh.tyre.String() + "/stock"
+			return bodyCase{path: p, key: w, ok: 200, hdr: etag(p),
+				body: map[string]any{"levels": []any{map[string]any{"location_id": sh.loc, "quantity": 5}}}}
+		},
+		"POST /v1/builds": func() bodyCase {
+			sh := theShop()
+			spec := inlineSpec()
+			spec["spoke"] = map[string]any{"diameter_mm": 2.0, "material": "stainless_steel"}
+			return bodyCase{path: "/v1/builds", key: w, ok: 201,
+				body: map[string]any{"location_id": sh.loc, "external_ref": "ORDER-1", "spec": spec}}
+		},
+		"PATCH /v1/builds/{id}": func() bodyCase {
+			p := "/v1/builds/" + build().String()
+			return bodyCase{path: p, key: w, ok: 200, hdr: etag(p), body: map[string]any{"notes": "true the rim first"}}
+		},
+		"POST /v1/builds/{id}/tension-audits": func() bodyCase {
+			cal, _ := calibrationFixture(e)
+			return bodyCase{path: "/v1/builds/" + build().String() + "/tension-audits", key: w, ok: 201,
+				body: map[string]any{"calibration_id": cal, "notes": "after stress relief",
+					"readings": []any{map[string]any{"side": "left", "spoke": 0, "reading": 300}, map[string]any{"side": "right", "spoke": 0, "reading": 310}}}}
+		},
+		"PUT /v1/price-list": func() bodyCase {
+			return bodyCase{path: "/v1/price-list", key: admin, ok: 200, hdr: etag("/v1/price-list"),
+				body: map[string]any{"currency": "EUR", "base_build_minor": 4000, "per_spoke_minor": 50, "per_drilled_hole_minor": 150,
+					"per_washer_minor": 20, "per_cut_spoke_minor": 80, "validity_days": 14}}
+		},
+		"POST /v1/quotes": func() bodyCase {
+			theShop()
+			return bodyCase{path: "/v1/quotes", key: w, ok: 201, body: map[string]any{"build_id": build()}}
+		},
+		"POST /v1/tools": func() bodyCase {
+			return bodyCase{path: "/v1/tools", key: w, ok: 201, body: map[string]any{"label": "spare tensiometer", "serial": "S-1",
+				"notes": "kept in the drawer", "location_id": e.newLocation(), "unit_mm": 0.01}}
+		},
+		"PATCH /v1/tools/{id}": func() bodyCase {
+			p := "/v1/tools/" + e.newTool().String()
+			return bodyCase{path: p, key: w, ok: 200, hdr: etag(p), body: map[string]any{"label": "renamed", "notes": "checked", "unit_mm": 0.01}}
+		},
+		"POST /v1/tools/{id}/calibrations": func() bodyCase {
+			return bodyCase{path: "/v1/tools/" + e.newTool().String() + "/calibrations", key: w, ok: 201,
+				body: map[string]any{"source": "maker_table", "notes": "from the box", "columns": e.synthColumns(1.8, 2.0)}}
+		},
+		"POST /v1/tension-conversions": func() bodyCase {
+			cal, _ := calibrationFixture(e)
+			return bodyCase{path: "/v1/tension-conversions", key: r, ok: 200,
+				body: map[string]any{"calibration_id": cal, "spoke": steel(2.0), "readings": []float64{300, 301}}}
+		},
+		"POST /v1/tension-audits": func() bodyCase {
+			cal, _ := calibrationFixture(e)
+			return bodyCase{path: "/v1/tension-audits", key: r, ok: 200,
+				body: map[string]any{"calibration_id": cal, "spoke": steel(2.0), "target_tension_n": 1100,
+					"readings": []any{map[string]any{"side": "right", "spoke": 0, "reading": 300}, map[string]any{"side": "right", "spoke": 1, "reading": 301}}}}
+		},
+		"POST /v1/webhook-endpoints": func() bodyCase {
+			return bodyCase{path: "/v1/webhook-endpoints", key: admin, ok: 201,
+				body: map[string]any{"url": "https://receiver.example/hooks", "events": []any{"build.*"}, "description": "order system"}}
+		},
+		"PATCH /v1/webhook-endpoints/{id}": func() bodyCase {
+			id, _ := webhookEndpointFixture(nil)(e)
+			p := "/v1/webhook-endpoints/" + id.String()
+			return bodyCase{path: p, key: admin, ok: 200, hdr: etag(p), body: map[string]any{"description": "renamed"}}
+		},
+		"POST /v1/spoke-lengths": func() bodyCase {
+			return bodyCase{path: "/v1/spoke-lengths", key: r, ok: 200, body: wheel()}
+		},
+		"POST /v1/spoke-lengths/batch": func() bodyCase {
+			return bodyCase{path: "/v1/spoke-lengths/batch", key: r, ok: 200, body: map[string]any{"wheels": []any{wheel(), wheel()}}}
+		},
+		"POST /v1/compatibility-checks": func() bodyCase {
+			return bodyCase{path: "/v1/compatibility-checks", key: r, ok: 200, body: compat()}
+		},
+	}
+}
+
+// bodyRoutes lists "METHOD path" of every operation in the spec that takes
+// a request body.
+func bodyRoutes(e *env) []string {
+	var out []string
+	for path, item := range e.srv.Doc().Paths.Map() {
+		for method, op := range item.Operations() {
+			if op.RequestBody != nil {
+				out = append(out, method+" "+path)
+			}
+		}
+	}
+	slices.Sort(out)
+	return out
+}
+
+// TestBodyCasesCoverEveryRoute: every route with a body has a base case,
+// and the spec lists the problems any body can earn it: 400, 408 (a body
+// that arrives too slowly), 413, 415 and 503.
+func TestBodyCasesCoverEveryRoute(t *testing.T) {
+	e := newEnv(t)
+	cases := bodyCases(e)
+	for _, k := range bodyRoutes(e) {
+		if _, ok := cases[k]; !ok {
+			t.Errorf("no base body for %s: add one to bodyCases", k)
+		}
+		method, path, _ := strings.Cut(k, " ")
+		op := e.srv.Doc().Paths.Find(path).GetOperation(method)
+		for _, code := range []string{"400", "408", "413", "415", "503"} {
+			if op.Responses.Value(code) == nil {
+				t.Errorf("%s does not list %s", k, code)
+			}
+		}
+	}
+}
+
+// render writes v as JSON with object members in sorted order, renaming
+// the member at pointer rename to newName, and writing the member at
+// pointer dup twice. Pointers are into v ("/spec/hub").
+func render(v any, at, rename, newName, dup string) []byte {
+	var b bytes.Buffer
+	var walk func(v any, at string)
+	walk = func(v any, at string) {
+		switch x := v.(type) {
+		case map[string]any:
+			keys := make([]string, 0, len(x))
+			for k := range x {
+				keys = append(keys, k)
+			}
+			slices.Sort(keys)
+			b.WriteByte('{')
+			first := true
+			member := func(name string, val any, p string) {
+				if !first {
+					b.WriteByte(',')
+				}
+				first = false
+				j, _ := json.Marshal(name)
+				b.Write(j)
+				b.WriteByte(':')
+				walk(val, p)
+			}
+			for _, k := range keys {
+				p := at + "/" + k
+				name := k
+				if p == rename {
+					name = newName
+				}
+				member(name, x[k], p)
+				if p == dup {
+					member(name, x[k], p)
+				}
+			}
+			b.WriteByte('}')
+		case []any:
+			b.WriteByte('[')
+			for i, e := range x {
+				if i > 0 {
+					b.WriteByte(',')
+				}
+				walk(e, fmt.Sprintf("%s/%d", at, i))
+			}
+			b.WriteByte(']')
+		default:
+			j, err := json.Marshal(x)
+			if err != nil {
+				panic(err)
+			}
+			b.Write(j)
+		}
+	}
+	walk(v, at)
+	return b.Bytes()
+}
+
+// generic turns a body into plain maps, slices and values (what render takes).
+func generic(t testing.TB, body map[string]any) map[string]any {
+	j, err := json.Marshal(body)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var m map[string]any
+	if err := json.Unmarshal(j, &m); err != nil {
+		t.Fatal(err)
+	}
+	return m
+}
+
+// setAt returns a copy of m with the value at pointer p replaced by raw
+// JSON text (so that it can hold bytes json.Marshal would mend).
+func setAt(t testing.TB, m map[string]any, p string, raw string) []byte {
+	const mark = "\u2603mark\u2603"
+	c := generic(t, m)
+	var cur any = c
+	parts := strings.Split(strings.TrimPrefix(p, "/"), "/")
+	for i, k := range parts {
+		last := i == len(parts)-1
+		switch x := cur.(type) {
+		case map[string]any:
+			if last {
+				x[k] = mark
+			} else {
+				cur = x[k]
+			}
+		case []any:
+			var n int
+			fmt.Sscan(k, &n)
+			if last {
+				x[n] = mark
+			} else {
+				cur = x[n]
+			}
+		default:
+			t.Fatalf("no %s in the body", p)
+		}
+	}
+	return bytes.Replace(render(c, "", "", "", ""), []byte(`"`+mark+`"`), []byte(raw), 1)
+}
+
+func wantProblemAt(t *testing.T, r response, status int, pointer string) {
+	t.Helper()
+	if r.StatusCode != status {
+		t.Fatalf("%s %s: status %d, want %d\n%s", r.Request.Method, r.Request.URL.Path, r.StatusCode, status, r.body)
+	}
+	p := r.problem(t)
+	for _, f := range p.Errors {
+		if f.Pointer == pointer {
+			if strings.Contains(f.Message, "json") || strings.Contains(f.Message, "Go ") {
+				t.Errorf("message for %s speaks of the decoder: %q", pointer, f.Message)
+			}
+			return
+		}
+	}
+	t.Errorf("%s %s: errors %+v do not name %s", r.Request.Method, r.Request.URL.Path, p.Errors, pointer)
+}
+
+// TestCaseVariantsAndDuplicatesRefused: on every route with a body, a
+// member name in another letter case and a member given twice are 400s
+// naming that member, nested ones too (the spec's names are exact); the
+// body as it should be is then accepted.
+func TestCaseVariantsAndDuplicatesRefused(t *testing.T) {
+	e := newEnv(t)
+	nested := map[string][]string{
+		"POST /v1/builds":               {"/spec/spoke_count", "/spec/hub", "/spec/crosses/left"},
+		"POST /v1/spoke-lengths":        {"/spoke_count", "/hub", "/hub/left/pcd_mm"},
+		"POST /v1/spoke-lengths/batch":  {"/wheels/1/hub", "/wheels/0/spoke_count"},
+		"POST /v1/compatibility-checks": {"/hub", "/rim/erd_mm"},
+		"PUT /v1/parts/{id}/stock":      {"/levels/0/quantity"},
+		"POST /v1/parts":                {"/dimensions/diameter_mm"},
+	}
+	cases := bodyCases(e)
+	for _, k := range bodyRoutes(e) {
+		t.Run(k, func(t *testing.T) {
+			c := cases[k]()
+			method, _, _ := strings.Cut(k, " ")
+			m := generic(t, c.body)
+			var members []string
+			for name := range m {
+				members = append(members, "/"+name)
+			}
+			slices.Sort(members)
+			for _, p := range append(members, nested[k]...) {
+				name := p[strings.LastIndex(p, "/")+1:]
+				parent := p[:strings.LastIndex(p, "/")]
+				for _, variant := range []string{strings.ToUpper(name[:1]) + name[1:], strings.ToUpper(name)} {
+					if variant == name {
+						continue
+					}
+					res := e.do(method, c.path, c.key, string(render(m, "", p, variant, "")), c.hdr...)
+					if strings.HasSuffix(k, "/batch") && res.StatusCode == 200 {
+						// A wheel's fault is its slot's, not the batch's.
+						if !bytes.Contains(res.body, []byte(`"pointer":"`+parent+"/"+variant+`"`)) {
+							t.Errorf("%s with %s: slot does not name the member: %.300s", k, variant, res.body)
+						}
+						continue
+					}
+					wantProblemAt(t, res, 400, parent+"/"+variant)
+				}
+				wantProblemAt(t, e.do(method, c.path, c.key, string(render(m, "", "", "", p)), c.hdr...), 400, p)
+			}
+			e.want(e.do(method, c.path, c.key, string(render(m, "", "", "", "")), c.hdr...), c.ok)
+		})
+	}
+}
+
+// TestNullRefused: null for any top-level member is a 400 naming it, on
+// every route with a body (the spec marks only the tool PATCH's
+// measured_span_mm nullable: there null removes the value).
+func TestNullRefused(t *testing.T) {
+	e := newEnv(t)
+	cases := bodyCases(e)
+	for _, k := range bodyRoutes(e) {
+		t.Run(k, func(t *testing.T) {
+			c := cases[k]()
+			method, _, _ := strings.Cut(k, " ")
+			m := generic(t, c.body)
+			for name := range m {
+				wantProblemAt(t, e.do(method, c.path, c.key, string(setAt(t, m, "/"+name, "null")), c.hdr...), 400, "/"+name)
+			}
+			wantProblemAt(t, e.do(method, c.path, c.key, "null", c.hdr...), 400, "")
+		})
+	}
+	c := cases["PATCH /v1/tools/{id}"]()
+	e.want(e.do("PATCH", c.path, c.key, map[string]any{"measured_span_mm": nil}, c.hdr...), 200)
+}
+
+// TestContentTypeRefused: every route with a body answers 415 to XML,
+// text, a form or no Content-Type at all, and stores nothing.
+func TestContentTypeRefused(t *testing.T) {
+	e := newEnv(t)
+	cases := bodyCases(e)
+	before := e.changeCount()
+	for _, k := range bodyRoutes(e) {
+		c := cases[k]()
+		method, _, _ := strings.Cut(k, " ")
+		body := string(render(generic(t, c.body), "", "", "", ""))
+		before = e.changeCount()
+		for _, ct := range []string{"application/xml", "text/plain", "application/x-www-form-urlencoded", "multipart/form-data; boundary=x", ""} {
+			hdr := append(slices.Clone(c.hdr), "Content-Type", ct)
+			e.want(e.do(method, c.path, c.key, body, hdr...), 415).problem(t)
+		}
+		if n := e.changeCount(); n != before {
+			t.Errorf("%s: refused bodies wrote %d changes", k, n-before)
+		}
+		// The same with a JSON type, a charset parameter allowed.
+		e.want(e.do(method, c.path, c.key, body, append(slices.Clone(c.hdr), "Content-Type", "application/json; charset=utf-8")...), c.ok)
+	}
+}
+
+// changeCount is the number of changes in organisation A's feed.
+func (e *env) changeCount() int {
+	e.t.Helper()
+	n, after := 0, ""
+	for {
+		var page struct {
+			Changes    []json.RawMessage `json:"changes"`
+			NextCursor string            `json:"next_cursor"`
+		}
+		e.want(e.do("GET", "/v1/changes?limit=1000&after="+after, e.keyA[service.RoleRead], nil), 200).json(e.t, &page)
+		n += len(page.Changes)
+		if len(page.Changes) == 0 {
+			return n
+		}
+		after = page.NextCursor
+	}
+}
+
+// storedStrings are the string members each route stores, by pointer.
+var storedStrings = map[string][]string{
+	"POST /v1/locations":                  {"/name", "/code", "/timezone", "/address"},
+	"PATCH /v1/locations/{id}":            {"/name", "/address"},
+	"POST /v1/api-keys":                   {"/name"},
+	"POST /v1/parts":                      {"/sku", "/name", "/currency", "/dimensions/material"},
+	"PATCH /v1/parts/{id}":                {"/name"},
+	"POST /v1/builds":                     {"/external_ref", "/spec/spoke/material"},
+	"PATCH /v1/builds/{id}":               {"/notes"},
+	"POST /v1/builds/{id}/tension-audits": {"/notes", "/readings/1/side"},
+	"PUT /v1/price-list":                  {"/currency"},
+	"POST /v1/tools":                      {"/label", "/serial", "/notes"},
+	"PATCH /v1/tools/{id}":                {"/label", "/notes"},
+	"POST /v1/tools/{id}/calibrations":    {"/notes", "/source"},
+	"POST /v1/webhook-endpoints":          {"/description", "/url", "/events/0"},
+	"PATCH /v1/webhook-endpoints/{id}":    {"/description"},
+}
+
+// TestUnstorableStringsRefused: U+0000 (which PostgreSQL's text cannot
+// hold) and invalid UTF-8 in any stored string are 400s naming the field,
+// on create and update, and nothing is written: the change feed, the
+// keys and the webhook endpoints are as before, and each base body is
+// accepted afterwards.
+func TestUnstorableStringsRefused(t *testing.T) {
+	e := newEnv(t)
+	cases := bodyCases(e)
+	admin := e.keyA[service.RoleAdmin]
+	count := func(path string) int {
+		var l struct{ Items []any }
+		e.want(e.do("GET", path, admin, nil), 200).json(t, &l)
+		return len(l.Items)
+	}
+	for k, ptrs := range storedStrings {
+		t.Run(k, func(t *testing.T) {
+			c := cases[k]()
+			method, _, _ := strings.Cut(k, " ")
+			m := generic(t, c.body)
+			changes, keys, hooks := e.changeCount(), count("/v1/api-keys"), count("/v1/webhook-endpoints")
+			for _, p := range ptrs {
+				for _, bad := range []string{`"a\u0000b"`, `"\u0000"`, "\"a\xffb\"", "\"\xc3\"", "\"\xed\xa0\x80\""} {
+					wantProblemAt(t, e.do(method, c.path, c.key, string(setAt(t, m, p, bad)), c.hdr...), 400, p)
+				}
+			}
+			if n := e.changeCount(); n != changes {
+				t.Errorf("refused bodies wrote %d changes", n-changes)
+			}
+			if count("/v1/api-keys") != keys || count("/v1/webhook-endpoints") != hooks {
+				t.Errorf("refused bodies wrote keys or endpoints")
+			}
+			e.want(e.do(method, c.path, c.key, string(render(m, "", "", "", "")), c.hdr...), c.ok)
+		})
+	}
+	for _, bad := range []string{"%00", "a%00b", "%FF", "%C3"} {
+		wantProblemAt(t, e.do("GET", "/v1/builds?external_ref="+bad, admin, nil), 400, "query:external_ref")
+		wantProblemAt(t, e.do("GET", "/v1/parts?sku="+bad, admin, nil), 400, "query:sku")
+	}
+}
+
+// TestNumbersOutOfRange: a number beyond a double's range is a 400 naming
+// the member, with its array index, in words for the integrator.
+func TestNumbersOutOfRange(t *testing.T) {
+	e := newEnv(t)
+	cases := bodyCases(e)
+	for k, p := range map[string]string{
+		"PUT /v1/parts/{id}/stock":      "/levels/0/quantity",
+		"POST /v1/tension-conversions":  "/readings/1",
+		"POST /v1/spoke-lengths":        "/target_tension_n",
+		"POST /v1/builds":               "/spec/target_tension_n",
+		"PATCH /v1/tools/{id}":          "/unit_mm",
+		"POST /v1/compatibility-checks": "/rim/erd_mm",
+	} {
+		c := cases[k]()
+		method, _, _ := strings.Cut(k, " ")
+		m := generic(t, c.body)
+		for _, n := range []string{"1e400", "-1e400"} {
+			r := e.do(method, c.path, c.key, string(setAt(t, m, p, n)), c.hdr...)
+			wantProblemAt(t, r, 400, p)
+		}
+	}
+}
