@@ -9,6 +9,7 @@ import (
 	"net/http"
 	"net/http/httptest"
 	"strings"
+	"sync"
 	"testing"
 
 	"github.com/getkin/kin-openapi/openapi3filter"
@@ -36,6 +37,26 @@ type env struct {
 	keyB string
 	orgA uuid.UUID
 	orgB uuid.UUID
+	// errLog holds the server's error-level log lines.
+	errLog *lockedBuffer
+}
+
+// lockedBuffer is a bytes.Buffer safe for the server's goroutines.
+type lockedBuffer struct {
+	mu sync.Mutex
+	b  bytes.Buffer
+}
+
+func (l *lockedBuffer) Write(p []byte) (int, error) {
+	l.mu.Lock()
+	defer l.mu.Unlock()
+	return l.b.Write(p)
+}
+
+func (l *lockedBuffer) String() string {
+	l.mu.Lock()
+	defer l.mu.Unlock()
+	return l.b.String()
 }
 
 func newEnv(t *testing.T) *env {
@@ -49,11 +70,16 @@ func newEnvB(b *testing.B) *env {
 	return newEnvPool(b, storetest.Pool(b))
 }
 
-func newEnvPool(t testing.TB, pool *pgxpool.Pool) *env {
+func newEnvPool(t testing.TB, pool *pgxpool.Pool, opts ...func(*api.Config)) *env {
 	t.Helper()
 	st := store.New(pool)
 	svc := service.New(st, nil)
-	srv, err := api.New(api.Config{Service: svc, Logger: slog.New(slog.NewTextHandler(tlog{t}, &slog.HandlerOptions{Level: slog.LevelError}))})
+	errLog := &lockedBuffer{}
+	cfg := api.Config{Service: svc, Logger: slog.New(slog.NewTextHandler(io.MultiWriter(tlog{t}, errLog), &slog.HandlerOptions{Level: slog.LevelError}))}
+	for _, o := range opts {
+		o(&cfg)
+	}
+	srv, err := api.New(cfg)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -61,7 +87,7 @@ func newEnvPool(t testing.TB, pool *pgxpool.Pool) *env {
 	if err != nil {
 		t.Fatal(err)
 	}
-	e := &env{t: t, srv: srv, svc: svc, st: st, router: router, keyA: map[service.Role]string{}}
+	e := &env{t: t, srv: srv, svc: svc, st: st, router: router, keyA: map[service.Role]string{}, errLog: errLog}
 	e.http = httptest.NewServer(srv.Handler())
 	t.Cleanup(e.http.Close)
 	ctx := context.Background()
