@@ -11,6 +11,7 @@ import (
 	"time"
 
 	"github.com/google/uuid"
+	"github.com/jackc/pgx/v5"
 	"github.com/jackc/pgx/v5/pgxpool"
 
 	"wheelbench/service"
@@ -214,5 +215,69 @@ func TestDatabaseOutageUnderLoad(t *testing.T) {
 	}
 	if stored != len(acked) {
 		t.Fatalf("%d of %d acknowledged builds are stored", stored, len(acked))
+	}
+}
+
+// TestDatabaseGoneIs503: when the service's database is dropped under it
+// (connections cut, then new ones refused with "database does not
+// exist"), and when it refuses connections, every route that needs it
+// answers 503 with Retry-After — never 500 — and nothing is logged as an
+// internal error. A computation whose key is cached still answers.
+func TestDatabaseGoneIs503(t *testing.T) {
+	for _, how := range []string{"dropped", "not accepting connections"} {
+		t.Run(how, func(t *testing.T) {
+			pool := storetest.Pool(t)
+			e := newEnvPool(t, pool)
+			s := e.newShop(10)
+			admin := pool.Config().ConnConfig.Copy()
+			name := admin.Database
+			admin.Database = "postgres"
+			conn, err := pgx.ConnectConfig(context.Background(), admin)
+			if err != nil {
+				t.Fatal(err)
+			}
+			defer conn.Close(context.Background())
+			ident := pgx.Identifier{name}.Sanitize()
+			switch how {
+			case "dropped":
+				_, err = conn.Exec(context.Background(), "DROP DATABASE "+ident+" WITH (FORCE)")
+			default:
+				_, err = conn.Exec(context.Background(), "ALTER DATABASE "+ident+" ALLOW_CONNECTIONS false")
+				if err == nil {
+					_, err = conn.Exec(context.Background(), "SELECT pg_terminate_backend(pid) FROM pg_stat_activity WHERE datname = $1", name)
+				}
+				t.Cleanup(func() {
+					_, _ = conn.Exec(context.Background(), "ALTER DATABASE "+ident+" ALLOW_CONNECTIONS true")
+				})
+			}
+			if err != nil {
+				t.Fatal(err)
+			}
+			w := e.keyA[service.RoleWrite]
+			for _, r := range []struct {
+				method, path, key string
+				body              any
+			}{
+				{"GET", "/readyz", "", nil},
+				{"GET", "/v1/me", w, nil},
+				{"GET", "/v1/locations", w, nil},
+				{"GET", "/v1/builds", w, nil},
+				{"GET", "/v1/changes", w, nil},
+				{"POST", "/v1/builds", w, map[string]any{"spec": s.spec(), "location_id": s.loc}},
+				{"POST", "/v1/locations", e.keyA[service.RoleAdmin], map[string]any{"name": "late bench"}},
+				{"GET", "/v1/parts/" + s.hub.String(), w, nil},
+				{"GET", "/v1/me", e.keyB, nil}, // a key not yet in the cache: authenticating needs the database
+			} {
+				res := e.want(e.do(r.method, r.path, r.key, r.body), 503)
+				res.problem(t)
+				if res.Header.Get("Retry-After") == "" {
+					t.Errorf("%s %s: 503 without Retry-After", r.method, r.path)
+				}
+			}
+			e.want(e.do("POST", "/v1/spoke-lengths", w, contractBody), 200)
+			if l := e.errLog.String(); l != "" {
+				t.Errorf("logged as internal errors:\n%s", l)
+			}
+		})
 	}
 }

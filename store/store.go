@@ -66,19 +66,29 @@ func wrap(err *error, what string) {
 	}
 }
 
-// isUnavailable reports errors that mean the database cannot be reached or
-// is shutting down, as opposed to a bad statement.
+// isUnavailable reports errors that mean the database cannot be reached,
+// is not there or will not take the work now, as opposed to a bad
+// statement: any failure to connect (refused, the database does not
+// exist, too many connections, authentication, the server starting or
+// stopping), a connection cut mid-statement, and the SQLSTATE classes of
+// those conditions on an open connection.
 func isUnavailable(err error) bool {
+	var connErr *pgconn.ConnectError
+	if errors.As(err, &connErr) {
+		return true
+	}
 	var pgErr *pgconn.PgError
 	if errors.As(err, &pgErr) {
 		switch pgErr.Code[:2] {
-		case "08", "57": // connection exception, operator intervention
+		case "08", // connection exception
+			"53", // insufficient resources: too many connections, disk full, out of memory
+			"57", // operator intervention: admin or crash shutdown, cannot connect now, database dropped
+			"58": // system error: I/O error
 			return true
 		}
-		return false
+		return pgErr.Code == "3D000" // the database does not exist (dropped under us)
 	}
-	var connErr *pgconn.ConnectError
-	if errors.As(err, &connErr) || pgconn.SafeToRetry(err) || pgconn.Timeout(err) {
+	if pgconn.SafeToRetry(err) || pgconn.Timeout(err) {
 		return true
 	}
 	var netErr interface{ Timeout() bool }
