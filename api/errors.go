@@ -7,6 +7,8 @@ import (
 	"strconv"
 
 	"github.com/labstack/echo/v4"
+
+	"wheelbench/service"
 )
 
 // handleError is echo's HTTPErrorHandler: every error becomes problem+json;
@@ -20,6 +22,11 @@ func (s *Server) handleError(err error, c echo.Context) {
 		s.log.ErrorContext(c.Request().Context(), "internal error",
 			slog.String("route", c.Path()), slog.String("error", err.Error()),
 			slog.String("request_id", c.Response().Header().Get(echo.HeaderXRequestID)))
+	}
+	if p.Status == http.StatusNotFound && p.Detail == defaultDetail[service.ErrNotFound] {
+		if noun := resourceNoun(c.Path()); noun != "" {
+			p.Detail = "No " + noun + " with this id is visible to this API key."
+		}
 	}
 	if p.Type == "" {
 		p.Type = "about:blank"

@@ -10,6 +10,7 @@ import (
 
 	"github.com/google/uuid"
 
+	"wheelbench/api"
 	"wheelbench/service"
 )
 
@@ -497,5 +498,66 @@ func TestNumbersOutOfRange(t *testing.T) {
 			r := e.do(method, c.path, c.key, string(setAt(t, m, p, n)), c.hdr...)
 			wantProblemAt(t, r, 400, p)
 		}
+	}
+}
+
+// cleanDetail fails when a problem's detail or messages name an internal
+// step, a constraint or the decoder instead of speaking to the integrator.
+func cleanDetail(t *testing.T, p api.Problem) {
+	t.Helper()
+	texts := []string{p.Detail}
+	for _, f := range p.Errors {
+		texts = append(texts, f.Message)
+	}
+	for _, s := range texts {
+		for _, bad := range []string{"get ", "Get ", "list ", "List ", "update ", "Update ", "create ", "Create ", "put ", "Put ",
+			"_key", "_fkey", "json", "JSON value of type", "Go ", "pgx", "SQL", "constraint"} {
+			if strings.Contains(s, bad) {
+				t.Errorf("%q names an internal step or the decoder (%q)", s, bad)
+			}
+		}
+	}
+}
+
+// TestProblemDetailsSpeakToTheIntegrator: not found, stale and missing
+// If-Match, conflicts and schema errors inside arrays say what is wrong
+// with the request, by field pointer with array indexes.
+func TestProblemDetailsSpeakToTheIntegrator(t *testing.T) {
+	e := newEnv(t)
+	w, admin := e.keyA[service.RoleWrite], e.keyA[service.RoleAdmin]
+	s := e.newShop(10)
+	for _, path := range []string{"/v1/builds/", "/v1/parts/", "/v1/quotes/", "/v1/tools/", "/v1/calibrations/", "/v1/locations/", "/v1/webhook-endpoints/"} {
+		p := e.want(e.do("GET", path+uuid.NewString(), admin, nil), 404).problem(t)
+		cleanDetail(t, p)
+		if !strings.HasPrefix(p.Detail, "No ") {
+			t.Errorf("GET %s…: detail %q", path, p.Detail)
+		}
+	}
+	cleanDetail(t, e.want(e.do("POST", "/v1/tension-conversions", w, map[string]any{"calibration_id": uuid.New(), "spoke": steel(2.0), "readings": []float64{300}}), 404).problem(t))
+	p := "/v1/parts/" + s.tyre.String()
+	cleanDetail(t, e.want(e.do("PATCH", p, w, map[string]any{"name": "x"}), 428).problem(t))
+	cleanDetail(t, e.want(e.do("PATCH", p, w, map[string]any{"name": "x"}, "If-Match", `"stale"`), 412).problem(t))
+	// A duplicate SKU is the integrator's to mend: named, no constraint.
+	e.want(e.do("PATCH", p, w, map[string]any{"sku": "TYRE-DUP"}, "If-Match", "*"), 200)
+	tyre2 := "/v1/parts/" + s.rim.String()
+	cleanDetail(t, e.want(e.do("PATCH", tyre2, w, map[string]any{"sku": "TYRE-DUP"}, "If-Match", "*"), 422).problem(t))
+	id, _ := buildFixture(nil)(e)
+	r := e.want(e.do("PATCH", "/v1/builds/"+id.String(), w, map[string]any{"status": "done"}, "If-Match", "*"), 409).problem(t)
+	cleanDetail(t, r)
+	if r.Detail != "A build cannot move from draft to done." {
+		t.Errorf("conflict detail %q", r.Detail)
+	}
+	// Schema errors inside arrays carry the element's index.
+	st := "/v1/parts/" + s.tyre.String() + "/stock"
+	for body, ptr := range map[string]string{
+		`{"levels": [{"location_id": "` + s.loc.String() + `", "quantity": 1}, {"location_id": "` + s.loc.String() + `", "quantity": "many"}]}`:               "/levels/1/quantity",
+		`{"levels": [{"location_id": "` + s.loc.String() + `", "quantity": 1}, {"location_id": "` + s.loc.String() + `", "quantity": -1}]}`:                   "/levels/1/quantity",
+		`{"levels": [{"location_id": "` + s.loc.String() + `", "quantity": 1}, {"location_id": "` + s.loc.String() + `", "quantity": 99999999999999999999}]}`: "/levels/1/quantity",
+		`{"levels": [{"location_id": "` + s.loc.String() + `", "quantity": 1}, {"location_id": "nope", "quantity": 1}]}`:                                      "/levels/1/location_id",
+		`{"levels": [{"location_id": "` + s.loc.String() + `", "quantity": 1}, {"location_id": "` + s.loc.String() + `", "colour": 1}]}`:                      "/levels/1/colour",
+	} {
+		res := e.do("PUT", st, w, body, "If-Match", "*")
+		wantProblemAt(t, res, 400, ptr)
+		cleanDetail(t, res.problem(t))
 	}
 }

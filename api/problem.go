@@ -140,7 +140,7 @@ func toProblem(err error) (p Problem, internal bool) {
 	}
 	for _, m := range statusOf {
 		if errors.Is(err, m.err) {
-			p := Problem{Status: m.status, Title: http.StatusText(m.status), Detail: detailOf(err)}
+			p := Problem{Status: m.status, Title: http.StatusText(m.status), Detail: detailOf(err, m.err)}
 			if m.status == http.StatusServiceUnavailable {
 				p.Detail = "The database cannot be reached; retry shortly."
 			}
@@ -168,12 +168,64 @@ func messageOf(fe fieldError) string {
 	return strings.TrimPrefix(msg, fe.FieldPointer()+": ")
 }
 
-// detailOf renders a sentinel-wrapped error as a sentence. Store errors are
-// wrapped with the operation's name only, never SQL text.
-func detailOf(err error) string {
-	s := err.Error()
-	if len(s) > 0 {
-		return strings.ToUpper(s[:1]) + s[1:] + "."
+// detailOf is the sentence a problem says for err, which wraps sentinel:
+// the words the service or store put after the sentinel ("conflict: a
+// build cannot move from draft to done" → "A build cannot move from draft
+// to done."), else the status's own sentence. What comes before the
+// sentinel names internal steps ("get build: not found") and is never
+// shown.
+func detailOf(err, sentinel error) string {
+	s, t := err.Error(), sentinel.Error()
+	for i := strings.Index(s, t); i >= 0; {
+		rest := s[i+len(t):]
+		if strings.HasPrefix(rest, ": ") && len(rest) > 2 {
+			return sentence(rest[2:])
+		}
+		j := strings.Index(rest, t)
+		if j < 0 {
+			break
+		}
+		i += len(t) + j
+	}
+	return defaultDetail[sentinel]
+}
+
+// sentence capitalises s and ends it with a full stop.
+func sentence(s string) string {
+	s = strings.ToUpper(s[:1]) + s[1:]
+	if !strings.HasSuffix(s, ".") && !strings.HasSuffix(s, "?") {
+		s += "."
+	}
+	return s
+}
+
+// defaultDetail is each sentinel's sentence when the error says no more.
+var defaultDetail = map[error]string{
+	service.ErrNotFound:             "No such resource is visible to this API key.",
+	service.ErrConflict:             "The request conflicts with the resource's current state; read it again and retry.",
+	service.ErrInvalid:              "The request is invalid.",
+	service.ErrUnprocessable:        "The request cannot be carried out.",
+	service.ErrUnauthenticated:      "The API key is malformed, unknown or revoked.",
+	service.ErrForbidden:            "This API key may not do this.",
+	service.ErrPreconditionFailed:   "If-Match does not name the resource's current version; read it again and retry.",
+	service.ErrPreconditionRequired: "Send If-Match with the resource's ETag.",
+	service.ErrGone:                 "What was asked for is gone for good.",
+}
+
+// resourceNoun names what a route's {id} is, for a 404's sentence.
+func resourceNoun(route string) string {
+	parts := strings.Split(route, "/")
+	for i := len(parts) - 1; i > 0; i-- {
+		if parts[i] == ":id" {
+			switch n := parts[i-1]; n {
+			case "api-keys":
+				return "API key"
+			case "webhook-endpoints":
+				return "webhook endpoint"
+			default:
+				return strings.TrimSuffix(n, "s")
+			}
+		}
 	}
 	return ""
 }

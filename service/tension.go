@@ -52,8 +52,11 @@ func (s *Service) modelFor(ctx context.Context, p Principal, ref CalibrationRef)
 		return nil, nil, Invalid("/calibration", "give calibration_id or an inline calibration, not both")
 	case ref.ID != nil:
 		c, err := s.store.GetCalibration(ctx, p.OrgID, *ref.ID)
+		if errors.Is(err, ErrNotFound) {
+			return nil, nil, fmt.Errorf("%w: no calibration with id %s is visible to this API key", ErrNotFound, *ref.ID)
+		}
 		if err != nil {
-			return nil, nil, fmt.Errorf("calibration %s: %w", *ref.ID, err)
+			return nil, nil, err
 		}
 		if c.Model == nil || c.Model.Version != tension.ModelVersion {
 			return nil, nil, fmt.Errorf("calibration %s: stored model layout is not version %d", c.ID, tension.ModelVersion)

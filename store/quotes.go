@@ -90,7 +90,10 @@ func (s *Store) CreateQuote(ctx context.Context, q service.Quote, from service.B
 		}
 		if from != service.BuildQuoted {
 			if _, err := setBuildStatus(ctx, tx, q.OrgID, q.BuildID, from, service.BuildQuoted); err != nil {
-				return fmt.Errorf("the build changed meanwhile: %w", err)
+				if errors.Is(err, service.ErrConflict) {
+					return fmt.Errorf("%w: the build changed meanwhile; read it and quote again", service.ErrConflict)
+				}
+				return err
 			}
 		}
 		return recordChange(ctx, tx, q.OrgID, service.Change{Type: "quote.created", ResourceID: q.ID, LocationID: &q.LocationID, Data: q})

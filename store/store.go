@@ -53,9 +53,15 @@ func wrap(err *error, what string) {
 	case errors.Is(e, pgx.ErrNoRows):
 		*err = fmt.Errorf("%s: %w", what, service.ErrNotFound)
 	case errors.As(e, &pgErr) && (pgErr.Code == "23505" || pgErr.Code == "23503"):
-		*err = fmt.Errorf("%s: %w: %s", what, service.ErrConflict, pgErr.ConstraintName)
+		// No constraint name: the text may reach a client.
+		*err = fmt.Errorf("%s: %w", what, service.ErrConflict)
 	case errors.As(e, &pgErr) && pgErr.Code == "22P02":
 		*err = fmt.Errorf("%s: %w", what, service.ErrNotFound) // malformed id text
+	case errors.As(e, &pgErr) && pgErr.Code[:2] == "22" && pgErr.Code != "22P02":
+		// A data exception (a character the database cannot store, a
+		// number out of its range) the API's checks let through: the
+		// request's fault, never a server error.
+		*err = fmt.Errorf("%s: %w: a value in the request cannot be stored", what, service.ErrInvalid)
 	case isUnavailable(e):
 		*err = fmt.Errorf("%s: %w: %v", what, service.ErrUnavailable, e)
 	case errors.Is(e, service.ErrNotFound), errors.Is(e, service.ErrConflict),
