@@ -298,9 +298,8 @@ func (s *Service) CreateBuild(ctx context.Context, p Principal, in BuildInput) (
 	if utf8.RuneCountInString(in.ExternalRef) > 200 {
 		return Build{}, Invalid("/external_ref", "external_ref must be at most 200 characters")
 	}
-	// This org-scoped read is what holds the build to one of its
-	// organisation's locations: the database has no foreign key for it
-	// (store.CreateBuild).
+	// An org-scoped read, so that a location of another organisation is a
+	// 422 naming the field; the database's foreign key holds it as well.
 	_, cal, err := s.locationWithCalibration(ctx, p.OrgID, in.LocationID)
 	if errors.Is(err, ErrNotFound) {
 		return Build{}, Unprocessable("/location_id", "no such location in this organisation")

@@ -47,7 +47,7 @@ type Store interface {
 	PutPartStock(ctx context.Context, orgID, partID uuid.UUID, version int64, levels []StockLevel) (PartStock, error)
 
 	// CreateBuild stores b and its change; b's location must be one of
-	// its organisation's (the store does not check it again).
+	// its organisation's (a foreign key refuses any other: ErrConflict).
 	CreateBuild(ctx context.Context, b Build) error
 	GetBuild(ctx context.Context, orgID, id uuid.UUID) (Build, error)
 	ListBuilds(ctx context.Context, orgID uuid.UUID, f BuildFilter, p Page) ([]Build, error)

@@ -28,10 +28,9 @@ func scanBuild(row pgx.CollectableRow) (service.Build, error) {
 }
 
 // CreateBuild inserts b and its build.created change. b's location must be
-// one of its organisation's: the caller checks that (the service does, for
-// each build, scoped to the organisation); no foreign key re-checks it
-// (migration 00009), and organisations and locations are never deleted or
-// re-keyed, so a location once found stays the organisation's.
+// one of its organisation's: the service checks that first, to answer with
+// the field at fault, and the foreign key (org_id, location_id) →
+// locations holds it in the database (migration 00010).
 func (s *Store) CreateBuild(ctx context.Context, b service.Build) (err error) {
 	defer wrap(&err, "create build")
 	snap := []byte(b.SnapshotJSON)
