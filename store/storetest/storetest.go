@@ -1,9 +1,12 @@
 // Package storetest gives each test its own PostgreSQL database, cloned from
-// a template that holds every migration. The server is, in order:
-// TEST_DATABASE_URL; the local server by libpq defaults (PG* variables, else
-// 127.0.0.1:5432 as user postgres); a PostgreSQL container started with
-// testcontainers-go when Docker answers. When none can be had the test fails
-// with a message saying how to get one: database tests never skip.
+// a template that holds every migration. The server is TEST_DATABASE_URL
+// when that is set — and then only it: an unreachable one fails the tests
+// rather than letting them run against another server. Unset, it is the
+// local server by libpq defaults (PG* variables, else 127.0.0.1:5432 as
+// user postgres), else a PostgreSQL container started with
+// testcontainers-go when Docker answers. When none can be had the tests
+// fail with a message saying how to get one, given once per test binary:
+// database tests never skip.
 package storetest
 
 import (
@@ -15,6 +18,7 @@ import (
 	"os"
 	"strings"
 	"sync"
+	"sync/atomic"
 	"testing"
 	"time"
 
@@ -33,6 +37,7 @@ var (
 	serverCfg *pgx.ConnConfig // admin connection to the chosen server
 	template  string
 	setupErr  error
+	told      atomic.Bool // the setup error has been explained once
 )
 
 const howTo = `no PostgreSQL for the tests. Set TEST_DATABASE_URL to a server where the
@@ -46,7 +51,11 @@ func URL(t testing.TB) string {
 	t.Helper()
 	once.Do(setup)
 	if setupErr != nil {
-		t.Fatalf("%s\n(last error: %v)", howTo, setupErr)
+		// The whole explanation once per test binary; later tests point to it.
+		if told.Swap(true) {
+			t.Fatal("no test database (see the first failing test of this package for why)")
+		}
+		t.Fatalf("%s\n(why: %v)", howTo, setupErr)
 	}
 	ctx, cancel := context.WithTimeout(context.Background(), time.Minute)
 	defer cancel()
@@ -121,26 +130,39 @@ func randomHex(n int) string {
 func setup() {
 	ctx, cancel := context.WithTimeout(context.Background(), 3*time.Minute)
 	defer cancel()
-	var errs []error
-	for _, candidate := range candidates() {
-		cfg, err := candidate(ctx)
-		if err != nil {
-			errs = append(errs, err)
-			continue
-		}
-		serverCfg = cfg
-		template = "wheelbench_tpl_" + store.MigrationsHash()
-		setupErr = buildTemplate(ctx)
+	cfg, err := chooseServer(ctx, os.Getenv)
+	if err != nil {
+		setupErr = err
 		return
 	}
-	setupErr = errors.Join(errs...)
+	serverCfg = cfg
+	template = "wheelbench_tpl_" + store.MigrationsHash()
+	setupErr = buildTemplate(ctx)
 }
 
-type serverSource func(ctx context.Context) (*pgx.ConnConfig, error)
-
-func candidates() []serverSource {
-	return []serverSource{fromEnv, fromLocal, fromContainer}
+// chooseServer picks the test server. TEST_DATABASE_URL, when set, is the
+// only candidate: a run that names its server must use it, so one that
+// cannot be reached fails instead of quietly testing another server.
+func chooseServer(ctx context.Context, getenv func(string) string) (*pgx.ConnConfig, error) {
+	if url := getenv("TEST_DATABASE_URL"); url != "" {
+		cfg, err := reach(ctx, url)
+		if err != nil {
+			return nil, fmt.Errorf("TEST_DATABASE_URL is set but its server cannot be used (the tests do not fall back to another): %w", err)
+		}
+		return cfg, nil
+	}
+	var errs []error
+	for _, candidate := range []serverSource{fromLocal, fromContainer} {
+		cfg, err := candidate(ctx, getenv)
+		if err == nil {
+			return cfg, nil
+		}
+		errs = append(errs, err)
+	}
+	return nil, errors.Join(append([]error{errors.New("TEST_DATABASE_URL is not set")}, errs...)...)
 }
+
+type serverSource func(ctx context.Context, getenv func(string) string) (*pgx.ConnConfig, error)
 
 func reach(ctx context.Context, url string) (*pgx.ConnConfig, error) {
 	cfg, err := pgx.ParseConfig(url)
@@ -155,22 +177,10 @@ func reach(ctx context.Context, url string) (*pgx.ConnConfig, error) {
 	return cfg, conn.Close(ctx)
 }
 
-func fromEnv(ctx context.Context) (*pgx.ConnConfig, error) {
-	url := os.Getenv("TEST_DATABASE_URL")
-	if url == "" {
-		return nil, errors.New("TEST_DATABASE_URL is not set")
-	}
-	cfg, err := reach(ctx, url)
-	if err != nil {
-		return nil, fmt.Errorf("TEST_DATABASE_URL: %w", err)
-	}
-	return cfg, nil
-}
-
-func fromLocal(ctx context.Context) (*pgx.ConnConfig, error) {
-	url := store.ResolveURL("", os.Getenv)
+func fromLocal(ctx context.Context, getenv func(string) string) (*pgx.ConnConfig, error) {
+	url := store.ResolveURL("", getenv)
 	// The admin database: PGDATABASE when set, else postgres.
-	if os.Getenv("PGDATABASE") == "" {
+	if getenv("PGDATABASE") == "" {
 		url = strings.Replace(url, "dbname="+store.DefaultDatabase, "dbname=postgres", 1)
 	}
 	cfg, err := reach(ctx, url)
@@ -180,13 +190,13 @@ func fromLocal(ctx context.Context) (*pgx.ConnConfig, error) {
 	return cfg, nil
 }
 
-func fromContainer(ctx context.Context) (cfg *pgx.ConnConfig, err error) {
+func fromContainer(ctx context.Context, getenv func(string) string) (cfg *pgx.ConnConfig, err error) {
 	defer func() {
 		if r := recover(); r != nil { // testcontainers panics when no Docker engine answers
 			err = fmt.Errorf("testcontainers: %v", r)
 		}
 	}()
-	if os.Getenv("WHEELBENCH_TEST_NO_CONTAINER") != "" {
+	if getenv("WHEELBENCH_TEST_NO_CONTAINER") != "" {
 		return nil, errors.New("testcontainers: disabled by WHEELBENCH_TEST_NO_CONTAINER")
 	}
 	c, err := tcpostgres.Run(ctx, "postgres:16-alpine",
