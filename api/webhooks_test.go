@@ -124,6 +124,12 @@ func TestWebhookEndpointRefusesPrivateDestinations(t *testing.T) {
 		"http://[::1]/",
 		"http://[::ffff:127.0.0.1]/",
 		"http://localhost/hook",
+		// The same hosts with non-ASCII full stops and fullwidth forms.
+		"http://127\u30020\u30020\u30021/hook",
+		"http://169\uff0e254\uff0e169\uff0e254/latest/meta-data/",
+		"http://10\uff6112\uff613\uff61/",
+		"http://localhost\u3002/hook",
+		"http://\uff4c\uff4f\uff43\uff41\uff4c\uff48\uff4f\uff53\uff54/hook",
 	} {
 		p := e.want(e.do("POST", "/v1/webhook-endpoints", admin, map[string]any{"url": u, "events": []string{"*"}}), 422).problem(t)
 		if len(p.Errors) != 1 || p.Errors[0].Pointer != "/url" {

@@ -6,6 +6,8 @@ import (
 	"net/url"
 	"strconv"
 	"strings"
+
+	"golang.org/x/net/idna"
 )
 
 // MaxURLLength bounds an endpoint URL (common practice for URLs that must
@@ -144,8 +146,9 @@ func embeddedIPv4(ip netip.Addr) (netip.Addr, bool) {
 // literal must pass CheckAddr; a host named localhost or *.localhost
 // (RFC 6761) is refused unless allowPrivate, and a host that looks like a
 // number but is no IP literal ("2130706433", "0x7f.1") is refused always.
-// Host names are otherwise not resolved here: the sender checks every
-// address it actually connects to. Errors are *FieldError at "/url":
+// Names are judged after IDNA's lookup mapping (non-ASCII full stops,
+// fullwidth forms). Host names are otherwise not resolved here: the sender
+// checks every address it actually connects to. Errors are *FieldError at "/url":
 // malformed (400) or refused destination (422).
 func CheckURL(raw string, allowPrivate bool) error {
 	const ptr = "/url"
@@ -187,7 +190,25 @@ func CheckURL(raw string, allowPrivate bool) error {
 	if strings.Contains(u.Host, "[") {
 		return invalid(ptr, "has a bracketed host that is not an IPv6 address")
 	}
-	name := strings.TrimSuffix(strings.ToLower(host), ".")
+	// A name is judged in the form a resolver looks up: IDNA's lookup
+	// mapping (UTS #46) turns the ideographic and fullwidth full stops
+	// (U+3002, U+FF0E, U+FF61) into dots, fullwidth digits and letters into
+	// ASCII and letters to lower case, so "127。0。0。1" and "ｌｏｃａｌｈｏｓｔ"
+	// are judged as 127.0.0.1 and localhost.
+	ascii, err := idna.Lookup.ToASCII(host)
+	if err != nil {
+		return invalid(ptr, "host is not a valid domain name")
+	}
+	if ip, err := netip.ParseAddr(ascii); err == nil {
+		if err := CheckAddr(ip, allowPrivate); err != nil {
+			return unprocessable(ptr, "must not point at "+err.(*AddrError).Range)
+		}
+		return nil
+	}
+	name := strings.TrimSuffix(strings.ToLower(ascii), ".")
+	if name == "" {
+		return invalid(ptr, "must name a host (https://host/path)")
+	}
 	if looksNumeric(name) {
 		return invalid(ptr, "host must be a DNS name or a plain IP address")
 	}

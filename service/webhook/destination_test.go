@@ -192,6 +192,21 @@ func TestCheckURL(t *testing.T) {
 		{"https://localhost/", unpro, ok},
 		{"https://LocalHost./", unpro, ok},
 		{"https://api.localhost:8080/", unpro, ok},
+		// Hosts with non-ASCII full stops and fullwidth forms are judged
+		// as IDNA's lookup mapping (UTS #46) writes them: the same as
+		// their ASCII forms above.
+		{"https://127\u30020\u30020\u30021/", unpro, ok},              // ideographic full stop
+		{"https://127\uff0e0\uff0e0\uff0e1/", unpro, ok},              // fullwidth full stop
+		{"https://169\uff61254\uff61169\uff61254/latest/", unpro, ok}, // halfwidth ideographic full stop
+		{"https://\uff11\uff12\uff17.0.0.1/", unpro, ok},              // fullwidth digits
+		{"https://localhost\u3002/", unpro, ok},                       // trailing ideographic full stop
+		{"https://api\u3002localhost/", unpro, ok},
+		{"https://\uff4c\uff4f\uff43\uff41\uff4c\uff48\uff4f\uff53\uff54/", unpro, ok}, // fullwidth letters
+		{"https://2130706433\u3002/", bad, bad},
+		{"https://hooks\u3002example\u3002com/", ok, ok},
+		{"https://b\u00fccher.example/", ok, ok}, // an ordinary internationalised name
+		{"https://xn--/", bad, bad},
+		{"https://a\u200b.example/", ok, ok}, // UTS #46 maps a zero-width space away: a.example
 	}
 	for _, tt := range tests {
 		for _, allow := range []bool{false, true} {
