@@ -8,8 +8,6 @@ import (
 	"unicode/utf8"
 
 	"github.com/google/uuid"
-
-	"wheelbench/service/spoke"
 )
 
 // BuildTensionAudit is a stored tension audit of a built wheel: the
@@ -59,16 +57,7 @@ func (s *Service) RecordBuildAudit(ctx context.Context, p Principal, buildID uui
 		return BuildTensionAudit{}, Unprocessable("/calibration_id", "the calibration has no fitted model")
 	}
 	res := b.Snapshot.Resolved
-	spec := SpokeSpec{Profile: "round", Material: "stainless_steel"}
-	if res.Spoke.Material != nil {
-		spec.Material = *res.Spoke.Material
-	}
-	switch {
-	case res.Spoke.DiameterMM != nil:
-		spec.DiameterMM = *res.Spoke.DiameterMM
-	case res.Spoke.Gauge != nil:
-		spec.DiameterMM, _ = spoke.GaugeDiameterMM(*res.Spoke.Gauge)
-	}
+	spec, _ := measuredSection(res.Spoke)
 	t := b.Snapshot.TargetTensionsN
 	side, target := "right", t.Right
 	if t.Left > t.Right {

@@ -122,11 +122,11 @@ type BuildParts struct {
 // fit types, so a spec is decoded once; null counts as absent.
 type BuildSpec struct {
 	SpokeCount     int             `json:"spoke_count"`
-	Hub            *fit.Hub        `json:"hub,omitempty"`
+	Hub            *geometry.Hub   `json:"hub,omitempty"`
 	HubID          *uuid.UUID      `json:"hub_id,omitempty"`
-	Rim            *fit.Rim        `json:"rim,omitempty"`
+	Rim            *geometry.Rim   `json:"rim,omitempty"`
 	RimID          *uuid.UUID      `json:"rim_id,omitempty"`
-	Spoke          *fit.SpokeSpec  `json:"spoke,omitempty"`
+	Spoke          *spoke.Spec     `json:"spoke,omitempty"`
 	SpokeID        *uuid.UUID      `json:"spoke_id,omitempty"`
 	Nipple         *fit.Nipple     `json:"nipple,omitempty"`
 	NippleID       *uuid.UUID      `json:"nipple_id,omitempty"`
@@ -135,7 +135,7 @@ type BuildSpec struct {
 	Tyre           *fit.Tyre       `json:"tyre,omitempty"`
 	TyreID         *uuid.UUID      `json:"tyre_id,omitempty"`
 	FrameSpacingMM *float64        `json:"frame_spacing_mm,omitempty"`
-	Crosses        fit.Crosses     `json:"crosses"`
+	Crosses        geometry.Cross  `json:"crosses"`
 	TargetTensionN float64         `json:"target_tension_n"`
 	Stock          *geometry.Stock `json:"stock,omitempty"`
 }
@@ -275,8 +275,9 @@ func (s *Service) resolveSpec(ctx context.Context, orgID, locationID uuid.UUID, 
 	if err := errors.Join(errs...); err != nil {
 		return CompatibilityInput{}, parts, "", err
 	}
-	in := CompatibilityInput{Input: fit.Input{SpokeCount: spec.SpokeCount, Hub: *hub, Rim: *rim, Spoke: *spk, Nipple: *nip,
-		Washers: washers, Tyre: tyre, FrameSpacingMM: spec.FrameSpacingMM, Crosses: spec.Crosses, TargetTensionN: spec.TargetTensionN}}
+	in := CompatibilityInput{SpokeCount: spec.SpokeCount, Hub: *hub, Rim: *rim, Spoke: *spk, Nipple: *nip,
+		Washers: washers, Tyre: tyre, FrameSpacingMM: spec.FrameSpacingMM, Crosses: spec.Crosses, TargetTensionN: spec.TargetTensionN,
+		IncludeLacing: true}
 	source := "none"
 	if spec.Stock != nil {
 		in.Stock, source = spec.Stock, "spec"
@@ -365,17 +366,7 @@ func targetReadings(cal *Calibration, in CompatibilityInput, t Sides) (*TargetRe
 	if cal == nil || cal.Model == nil {
 		return nil, nil
 	}
-	spec := SpokeSpec{Profile: "round", Material: "stainless_steel"}
-	if in.Spoke.Material != nil {
-		spec.Material = *in.Spoke.Material
-	}
-	switch {
-	case in.Spoke.DiameterMM != nil:
-		spec.DiameterMM = *in.Spoke.DiameterMM
-	case in.Spoke.Gauge != nil:
-		d, _ := spoke.GaugeDiameterMM(*in.Spoke.Gauge)
-		spec.DiameterMM = d
-	}
+	spec, _ := measuredSection(in.Spoke)
 	out := &TargetReadings{ToolID: cal.ToolID, CalibrationID: cal.ID}
 	var cautions []string
 	for _, side := range []struct {
@@ -394,6 +385,20 @@ func targetReadings(cal *Calibration, in CompatibilityInput, t Sides) (*TargetRe
 		cautions = append(cautions, tg.Cautions...)
 	}
 	return out, cautions
+}
+
+// measuredSection is the section of sp the tensiometer sits on (the
+// thinnest unless the spoke says otherwise), as conversions take it, and
+// its name ("body" or "section_<n>").
+func measuredSection(sp spoke.Spec) (SpokeSpec, string) {
+	r, _ := sp.Resolve(false)
+	m := r.Measured
+	out := SpokeSpec{Profile: string(m.Profile), DiameterMM: m.DiameterMM, WidthMM: m.WidthMM, ThicknessMM: m.ThicknessMM,
+		Material: r.Material.Name, EGPa: sp.EGPa}
+	if out.Profile == "" {
+		out.Profile = string(spoke.Round)
+	}
+	return out, r.MeasuredName
 }
 
 // GetBuild reads one build.

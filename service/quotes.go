@@ -205,8 +205,8 @@ func (s *Service) quoteInput(ctx context.Context, p Principal, b Build, currency
 			}
 		}
 		// Spokes are cut when no stock length was chosen, or when the chosen
-		// one ends long (the geometry's stock_end_long finding).
-		if side.r.StockLengthMM == nil || hasFinding(geometry.Result{Findings: geo.Findings}, geometry.CodeStockEndLong, side.name) {
+		// one ends past the nipple head.
+		if side.r.StockLengthMM == nil || hasFinding(geo.Findings, fit.CodeSpokeProtrudesPastNipple, side.name) {
 			in.Labour.SpokesCut += perSide
 		}
 	}
@@ -268,4 +268,14 @@ func (s *Service) GetQuote(ctx context.Context, p Principal, id uuid.UUID) (Quot
 // nothing changes; stock never goes negative.
 func (s *Service) AcceptQuote(ctx context.Context, p Principal, id uuid.UUID) (Quote, error) {
 	return s.store.AcceptQuote(ctx, p.OrgID, id, s.now().UTC())
+}
+
+// hasFinding reports whether fs holds code for side.
+func hasFinding(fs []fit.Finding, code, side string) bool {
+	for _, f := range fs {
+		if f.Code == code && f.Side == side {
+			return true
+		}
+	}
+	return false
 }
