@@ -148,6 +148,7 @@ func (m *Model) Audit(req AuditRequest) (AuditResult, error) {
 	}
 	preps := map[string]*prepared{}
 	out := AuditResult{TolerancePct: tol, GeometricLeftRightRatio: ratio, Warnings: []Warning{}, Cautions: []string{}}
+	warned := map[Warning]bool{}
 	caution := map[string]bool{}
 	addCaution := func(c string) {
 		if !caution[c] {
@@ -180,6 +181,14 @@ func (m *Model) Audit(req AuditRequest) (AuditResult, error) {
 			}
 			p = &pp
 			preps[rd.Side] = p
+			// The section's own warnings (stiffness, a profile the
+			// calibration lacks), once per wheel.
+			for _, w := range p.secWarns {
+				if !warned[w] {
+					warned[w] = true
+					out.Warnings = append(out.Warnings, w)
+				}
+			}
 		}
 		res, err := p.convert(rd.Reading, func() string { return ptr("readings", i, "reading") })
 		if err != nil {
