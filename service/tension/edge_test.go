@@ -116,6 +116,8 @@ func TestIntervalWidensAwayFromTable(t *testing.T) {
 // TestNeverReliableBesideAnUnreliableColumn (property): wherever the edge
 // column's own conversion is unreliable at a tension, a section just off
 // the table is unreliable at that tension too, as conversion and target.
+// Source of the comparison: the column's own conversion at that tension (a
+// second computation, by the column's curve, not the tool model).
 func TestNeverReliableBesideAnUnreliableColumn(t *testing.T) {
 	m := synthModel(t)
 	seen := 0
@@ -149,7 +151,8 @@ func TestNeverReliableBesideAnUnreliableColumn(t *testing.T) {
 // TestIntervalBetweenColumns (property): a section between two columns of
 // its material and profile is interpolated, and its interval is never
 // narrower, as a share of the tension, than the narrower neighbour's at
-// the same tension.
+// the same tension. Source of the comparison: each neighbour's own
+// conversion at that tension.
 func TestIntervalBetweenColumns(t *testing.T) {
 	m := synthModel(t)
 	for _, c := range []struct {
