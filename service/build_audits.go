@@ -58,16 +58,20 @@ func (s *Service) RecordBuildAudit(ctx context.Context, p Principal, buildID uui
 	}
 	res := b.Snapshot.Resolved
 	spec, _ := measuredSection(res.Spoke)
+	// The same rule as POST /v1/tension-audits: the target is the tighter
+	// side's tension and the ratio (T_left/T_right, from the snapshot's
+	// geometry, else from its two target tensions) decides which side that
+	// is and aims the other; no target_side is sent.
 	t := b.Snapshot.TargetTensionsN
-	side, target := "right", t.Right
-	if t.Left > t.Right {
-		side, target = "left", t.Left
-	}
-	req := AuditRequest{Spoke: spec, Readings: in.Readings, TargetSide: side, TolerancePct: in.TolerancePct}
-	if target > 0 {
+	req := AuditRequest{Spoke: spec, Readings: in.Readings, TolerancePct: in.TolerancePct}
+	if target := max(t.Left, t.Right); target > 0 {
 		req.TargetTensionN = &target
 	}
-	if r := b.Snapshot.Compatibility.Geometry.Ratio; r > 0 {
+	r := b.Snapshot.Compatibility.Geometry.Ratio
+	if !(r > 0) && t.Left > 0 && t.Right > 0 {
+		r = t.Left / t.Right
+	}
+	if r > 0 {
 		req.GeometricLeftRightRatio = &r
 	}
 	result, err := cal.Model.Audit(req)

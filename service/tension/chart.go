@@ -62,8 +62,12 @@ func (m *Model) Chart(spec *SpokeSpec) ([]byte, error) {
 				line = append(line, [2]float64{t, r})
 				if withBand {
 					g := make([]float64, len(m.Physical.Params))
-					gradient(m.Physical.Params, p.es, m.UnitMM, st, g)
-					w := p.halfWidthUnits(g)
+					drdT := gradient(m.Physical.Params, p.es, m.UnitMM, st, g)
+					w := m.halfWidthUnits(g)
+					if drdT > 0 {
+						// The band a target at t reports (edge.go floor).
+						w, _, _ = p.widenUnits(t, w, drdT)
+					}
 					upper = append(upper, [2]float64{t, r + w})
 					lower = append(lower, [2]float64{t, r - w})
 				}
@@ -72,7 +76,7 @@ func (m *Model) Chart(spec *SpokeSpec) ([]byte, error) {
 				if r, ok := cv.invert(t); ok {
 					line = append(line, [2]float64{t, r})
 					if withBand {
-						w, _ := p.columnHalfWidth()
+						w, _ := m.columnHalfWidth()
 						upper = append(upper, [2]float64{t, r + w})
 						lower = append(lower, [2]float64{t, r - w})
 					}
