@@ -716,7 +716,6 @@ func (m *Model) drawLegend(b *bytes.Buffer, all []chartSeries, req *chartSeries,
 		y += float64(len(lines))*lineGap + 9
 	}
 	for _, s := range all {
-		s := s
 		if s.requested {
 			// Drawn as the curve mostly is: dotted on a hatched band when
 			// extrapolated, solid on grey otherwise.
