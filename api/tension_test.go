@@ -401,8 +401,11 @@ func TestChart(t *testing.T) {
 	if r.Header.Get("Content-Type") != "image/svg+xml" || !strings.HasPrefix(svg, "<svg") {
 		t.Fatalf("content type %q, body %.80s", r.Header.Get("Content-Type"), svg)
 	}
-	if !strings.Contains(svg, "requested: round 2.6 mm") || !strings.Contains(svg, `class="band"`) {
-		t.Error("the chart lacks the requested 2.6 mm curve with its band")
+	if !strings.Contains(svg, "requested: round 2.6 mm") || !strings.Contains(svg, `class="band extrapolated"`) {
+		t.Error("the chart lacks the requested 2.6 mm curve with its band, extrapolated")
+	}
+	if !strings.Contains(svg, "Tensiometer bench tensiometer · serial not recorded · calibration version 1") {
+		t.Error("the chart's title does not name the tool and the calibration version")
 	}
 	if n := strings.Count(svg, `class="curve"`); n != 5 {
 		t.Errorf("%d curves, want the four columns and the requested section", n)
