@@ -57,13 +57,12 @@ func (s *Service) RecordBuildAudit(ctx context.Context, p Principal, buildID uui
 		return BuildTensionAudit{}, Unprocessable("/calibration_id", "the calibration has no fitted model")
 	}
 	res := b.Snapshot.Resolved
-	spec, _ := measuredSection(res.Spoke)
 	// The same rule as POST /v1/tension-audits: the target is the tighter
 	// side's tension and the ratio (T_left/T_right, from the snapshot's
 	// geometry, else from its two target tensions) decides which side that
 	// is and aims the other; no target_side is sent.
 	t := b.Snapshot.TargetTensionsN
-	req := AuditRequest{Spoke: spec, Readings: in.Readings, TolerancePct: in.TolerancePct}
+	req := AuditRequest{Spoke: res.Spoke, Readings: in.Readings, TolerancePct: in.TolerancePct}
 	if target := max(t.Left, t.Right); target > 0 {
 		req.TargetTensionN = &target
 	}

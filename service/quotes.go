@@ -215,8 +215,17 @@ func (s *Service) quoteInput(ctx context.Context, p Principal, b Build, currency
 		switch c.Kind {
 		case "add_washers":
 			in.Labour.WashersFitted += int64(c.Count)
-			if len(snap.Parts.Washers) > 0 && c.FromGiven {
-				w, err := part(&snap.Parts.Washers[0])
+			var wid *uuid.UUID
+			switch {
+			case c.PartID != "": // the catalog washer the check proposed
+				if id, err := uuid.Parse(c.PartID); err == nil {
+					wid = &id
+				}
+			case len(snap.Parts.Washers) > 0 && c.FromGiven:
+				wid = &snap.Parts.Washers[0]
+			}
+			if wid != nil {
+				w, err := part(wid)
 				if err != nil {
 					return in, nil, err
 				}

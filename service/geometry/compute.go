@@ -141,6 +141,8 @@ func sideResult(g *sideGeom, s *side, rimR float64, buf *wheelBuf, k int) SideRe
 	if s.exit == ExitJBend && g.even {
 		// Exact decimal: crosses × 360 / n, not α converted back.
 		out.HubAngleDeg = float64(s.crosses) * 360 / float64(s.n)
+	} else if !g.even {
+		out.HubAngleDeg = roundDeg(out.HubAngleDeg)
 	}
 	if s.exit == ExitAngled {
 		buf.val[k][4] = s.angle * deg
@@ -266,15 +268,17 @@ func sideFacts(s *side, g *sideGeom) SideFacts {
 // plan writes the lacing plan in spoke order.
 func plan(n int, gl, gr *sideGeom, r *resolved) []LacingSpoke {
 	out := make([]LacingSpoke, n)
-	planSide(out, gl, r.left.crosses, "left")
-	planSide(out, gr, r.right.crosses, "right")
+	planSide(out, n, gl, r.left.crosses, "left")
+	planSide(out, n, gr, r.right.crosses, "right")
 	return out
 }
 
-func planSide(out []LacingSpoke, g *sideGeom, crosses int, name string) {
+func planSide(out []LacingSpoke, n int, g *sideGeom, crosses int, name string) {
 	for _, sg := range g.spokes {
-		e := LacingSpoke{Spoke: sg.rimIdx + 1, Side: name, RimHoleDeg: normDeg(sg.rimRad * deg),
-			HubHoleDeg: normDeg(sg.hubRad * deg), Crosses: crosses, LengthMM: sg.lengthMM}
+		// The rim hole's angle exactly; the hub hole's to a billionth of a
+		// degree (a clocking found by search carries rounding noise).
+		e := LacingSpoke{Spoke: sg.rimIdx + 1, Side: name, RimHoleDeg: (float64(sg.rimIdx) + 0.5) * 360 / float64(n),
+			HubHoleDeg: roundDeg(normDeg(sg.hubRad * deg)), Crosses: crosses, LengthMM: sg.lengthMM}
 		switch sg.dir {
 		case 1:
 			e.Direction, e.Head = "leading", "out"
@@ -285,6 +289,15 @@ func planSide(out []LacingSpoke, g *sideGeom, crosses int, name string) {
 		}
 		out[sg.rimIdx] = e
 	}
+}
+
+// roundDeg rounds an angle to 1e-9° (and 360 back to 0).
+func roundDeg(d float64) float64 {
+	d = math.Round(d*1e9) / 1e9
+	if d >= 360 {
+		d -= 360
+	}
+	return d + 0
 }
 
 // normDeg maps an angle into [0°, 360°).

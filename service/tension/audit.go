@@ -5,6 +5,8 @@ import (
 	"fmt"
 	"math"
 	"sort"
+
+	"wheelbench/service/spoke"
 )
 
 // defaultTolerancePct is ±10 % around the aim, common practice.
@@ -29,9 +31,9 @@ type AuditRequest struct {
 	// CalibrationID is resolved by the caller; this package ignores it.
 	CalibrationID    string         `json:"calibration_id,omitempty"`
 	Calibration      *Calibration   `json:"calibration,omitempty"`
-	Spoke            SpokeSpec      `json:"spoke"`
-	SpokeLeft        *SpokeSpec     `json:"spoke_left,omitempty"`
-	SpokeRight       *SpokeSpec     `json:"spoke_right,omitempty"`
+	Spoke            spoke.Spec     `json:"spoke"`
+	SpokeLeft        *spoke.Spec    `json:"spoke_left,omitempty"`
+	SpokeRight       *spoke.Spec    `json:"spoke_right,omitempty"`
 	Readings         []AuditReading `json:"readings"`
 	TargetTensionN   *float64       `json:"target_tension_n,omitempty"`
 	TargetTensionKgf *float64       `json:"target_tension_kgf,omitempty"`
@@ -204,7 +206,7 @@ func (m *Model) Audit(req AuditRequest) (AuditResult, error) {
 			return AuditResult{}, err
 		}
 	}
-	specs := map[string]SpokeSpec{"left": req.Spoke, "right": req.Spoke}
+	specs := map[string]spoke.Spec{"left": req.Spoke, "right": req.Spoke}
 	atOf := map[string]string{"left": "/spoke", "right": "/spoke"}
 	if req.SpokeLeft != nil {
 		specs["left"], atOf["left"] = *req.SpokeLeft, "/spoke_left"
@@ -244,7 +246,7 @@ func (m *Model) Audit(req AuditRequest) (AuditResult, error) {
 		seen[key] = true
 		p := preps[rd.Side]
 		if p == nil {
-			pp, err := m.prepare(specs[rd.Side], atOf[rd.Side])
+			pp, err := m.prepareSpoke(specs[rd.Side], atOf[rd.Side])
 			if err != nil {
 				return AuditResult{}, err
 			}

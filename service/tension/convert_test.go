@@ -236,13 +236,13 @@ func TestRefusals(t *testing.T) {
 	}
 
 	// Request-level: inline calibration pointers are prefixed.
-	req := ConversionRequest{Calibration: &bad, Spoke: steelRound(2.0), Readings: []float64{50}}
+	req := ConversionRequest{Calibration: &bad, Spoke: whole(steelRound(2.0)), Readings: []float64{50}}
 	_, err = req.FitInline(Tool{})
 	if fe := fieldErr(t, err); fe.Pointer != "/calibration/columns/1/points/4/reading" {
 		t.Errorf("inline pointer %q", fe.Pointer)
 	}
 	// Out-of-reach reading in a request points at its index.
-	_, err = m.ConvertRequest(ConversionRequest{Spoke: steelRound(2.6), Readings: []float64{math.Round(synthReading(t, steelRound(2.6), 1000)), 1e5}})
+	_, err = m.ConvertRequest(ConversionRequest{Spoke: whole(steelRound(2.6)), Readings: []float64{math.Round(synthReading(t, steelRound(2.6), 1000)), 1e5}})
 	if fe := fieldErr(t, err); fe.Pointer != "/readings/1" {
 		t.Errorf("request pointer %q", fe.Pointer)
 	}
@@ -289,7 +289,7 @@ func TestModelJSONRoundTrip(t *testing.T) {
 func TestRequestTargets(t *testing.T) {
 	m := synthModel(t)
 	kgf := 120.0
-	out, err := m.ConvertRequest(ConversionRequest{Spoke: steelRound(2.0), TargetTensionKgf: &kgf})
+	out, err := m.ConvertRequest(ConversionRequest{Spoke: whole(steelRound(2.0)), TargetTensionKgf: &kgf})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -298,7 +298,7 @@ func TestRequestTargets(t *testing.T) {
 		t.Errorf("target %+v", out.Target)
 	}
 	n := 1000.0
-	if _, err := m.ConvertRequest(ConversionRequest{Spoke: steelRound(2.0), TargetTensionN: &n, TargetTensionKgf: &kgf}); err == nil {
+	if _, err := m.ConvertRequest(ConversionRequest{Spoke: whole(steelRound(2.0)), TargetTensionN: &n, TargetTensionKgf: &kgf}); err == nil {
 		t.Error("two targets accepted")
 	}
 }
@@ -335,7 +335,7 @@ func TestProfileNotInCalibration(t *testing.T) {
 			rds = append(rds, AuditReading{Side: "right", Spoke: i, Reading: synthReading(t, spec, 1000)},
 				AuditReading{Side: "left", Spoke: i, Reading: synthReading(t, steelRound(2.0), 800)})
 		}
-		a, err := m.Audit(AuditRequest{Spoke: steelRound(2.0), SpokeRight: &spec, Readings: rds, TargetTensionN: &target, GeometricLeftRightRatio: &ratio})
+		a, err := m.Audit(AuditRequest{Spoke: whole(steelRound(2.0)), SpokeRight: wholePtr(spec), Readings: rds, TargetTensionN: &target, GeometricLeftRightRatio: &ratio})
 		if err != nil {
 			t.Fatal(err)
 		}
