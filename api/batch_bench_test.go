@@ -37,7 +37,7 @@ func BenchmarkAppendResult(b *testing.B) {
 	if !parseWheel([]byte(benchWheel), &w, nil) {
 		b.Fatal("the fast path declined the contract wheel")
 	}
-	r, err := geometry.Compute(w)
+	r, err := testService().SpokeLengths(w)
 	if err != nil {
 		b.Fatal(err)
 	}

@@ -405,3 +405,108 @@ func TestBuildRefusesAnotherOrganisationsLocation(t *testing.T) {
 		t.Errorf("organisation B has %d builds and %d build.created changes, want none", builds, changes)
 	}
 }
+
+// TestButtedSpokeAimsOnItsMiddle: a 2.0/1.8/2.0 spoke is measured on its
+// 1.8 mm middle, so the build's aim reading is the synthetic tool's reading
+// of a 1.8 mm spoke at the target (the forward model, a second computation
+// through the tool's own beam equations), not a 2.0 mm one's — which the
+// same calibration converts to far more than the target on the 1.8 mm
+// section. The snapshot names the section.
+func TestButtedSpokeAimsOnItsMiddle(t *testing.T) {
+	e := newEnv(t)
+	w := e.keyA[service.RoleWrite]
+	s := e.newShop(2)
+	var tool struct{ ID uuid.UUID }
+	e.want(e.do("POST", "/v1/tools", w, map[string]any{"label": "butted bench tensiometer", "location_id": s.loc}), 201).json(t, &tool)
+	e.publish(tool.ID, e.synthColumns(1.5, 1.8, 2.0, 2.3))
+	spec := inlineSpec()
+	butted := map[string]any{}
+	for k, v := range spokeDims {
+		butted[k] = v
+	}
+	butted["sections"] = []any{map[string]any{"length_mm": 230, "diameter_mm": 1.8}}
+	spec["spoke"] = butted
+	var b struct {
+		Snapshot struct {
+			TargetTensionsN struct{ Left, Right float64 } `json:"target_tensions_n"`
+			TargetReadings  *struct {
+				MeasuredSection struct {
+					Name       string  `json:"name"`
+					DiameterMM float64 `json:"diameter_mm"`
+				} `json:"measured_section"`
+				Right struct {
+					Reading float64 `json:"reading"`
+				} `json:"right"`
+			} `json:"target_readings"`
+		} `json:"snapshot"`
+	}
+	e.want(e.do("POST", "/v1/builds", w, map[string]any{"spec": spec, "location_id": s.loc}), 201).json(t, &b)
+	tr := b.Snapshot.TargetReadings
+	if tr == nil || tr.MeasuredSection.Name != "section_1" || tr.MeasuredSection.DiameterMM != 1.8 {
+		t.Fatalf("target readings %+v: want them on section_1, 1.8 mm", tr)
+	}
+	target := b.Snapshot.TargetTensionsN.Right
+	on18 := e.synthReading(steel(1.8), target)
+	on20 := e.synthReading(steel(2.0), target)
+	if d := tr.Right.Reading - on18; d > 1.5 || d < -1.5 {
+		t.Errorf("aim reading %.2f; the tool reads %.2f on 1.8 mm and %.2f on 2.0 mm at %.0f N", tr.Right.Reading, on18, on20, target)
+	}
+	if on20-on18 < 5 {
+		t.Fatalf("the case does not tell the sections apart: %.2f vs %.2f", on18, on20)
+	}
+}
+
+// TestBuildProposesCatalogWasher: a 3.2 mm head on a 2.6 mm flange hole
+// bears on 0.6 mm, less than the 0.8 mm margin (common practice), so a
+// washer goes under each head; the catalog carries one that suits (bore
+// 2.1 mm ≥ the 2.0 mm spoke, 3.2 − 2.1 = 1.1 mm under the head, 5.0 − 2.6
+// = 2.4 mm on the flange), so the build proposes that part rather than a
+// washer to buy, and its quote bills that part, 32 of them.
+func TestBuildProposesCatalogWasher(t *testing.T) {
+	e := newEnv(t)
+	w := e.keyA[service.RoleWrite]
+	s := e.newShop(2)
+	sku := "WSH-" + uuid.NewString()[:6]
+	washer := e.createPart("washer", sku, 5, map[string]any{"thickness_mm": 0.5, "inner_diameter_mm": 2.1, "outer_diameter_mm": 5.0, "where": "hub"})
+	e.putStock(washer, []map[string]any{{"location_id": s.loc, "quantity": 500}})
+	sp := map[string]any{}
+	for k, v := range spokeDims {
+		sp[k] = v
+	}
+	sp["head_diameter_mm"], sp["elbow_length_mm"] = 3.2, 3.3
+	spec := s.spec()
+	delete(spec, "spoke_id")
+	spec["spoke"] = sp
+	var b struct {
+		ID       uuid.UUID `json:"id"`
+		Snapshot struct {
+			Compatibility struct {
+				Verdict string `json:"verdict"`
+				Changes []struct {
+					Kind   string `json:"kind"`
+					PartID string `json:"part_id"`
+					Count  int    `json:"count"`
+				} `json:"changes"`
+			} `json:"compatibility"`
+		} `json:"snapshot"`
+	}
+	e.want(e.do("POST", "/v1/builds", w, map[string]any{"spec": spec, "location_id": s.loc}), 201).json(t, &b)
+	c := b.Snapshot.Compatibility
+	if c.Verdict != "fits_with_changes" || len(c.Changes) != 1 || c.Changes[0].PartID != washer.String() || c.Changes[0].Count != 32 {
+		t.Fatalf("want the catalog washer proposed for 32 spokes, got %+v", c)
+	}
+	var q struct {
+		Lines []struct {
+			SKU      string `json:"sku"`
+			Quantity int64  `json:"quantity"`
+		} `json:"lines"`
+	}
+	e.want(e.do("POST", "/v1/quotes", w, map[string]any{"build_id": b.ID}), 201).json(t, &q)
+	billed := false
+	for _, l := range q.Lines {
+		billed = billed || l.SKU == sku && l.Quantity == 32
+	}
+	if !billed {
+		t.Errorf("the quote does not bill 32 × %s: %+v", sku, q.Lines)
+	}
+}

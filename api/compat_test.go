@@ -183,8 +183,9 @@ func TestCompatibilityMotorHub(t *testing.T) {
 }
 
 // TestCompatibilityRimWashers: a nipple head that would pull through the
-// rim hole gets a washer under each nipple, and the lengths include the
-// nipple-seat correction: the effective ERD shrinks by twice the washer.
+// rim hole gets a washer under each nipple, and the lengths include it: the
+// washer lifts each nipple head away from the hub, so the effective ERD
+// grows by twice the washer.
 func TestCompatibilityRimWashers(t *testing.T) {
 	e := newEnv(t)
 	// A 5.6 mm head on a 5.0 mm hole: 0.6 mm < 0.8 mm (common practice).
@@ -199,11 +200,11 @@ func TestCompatibilityRimWashers(t *testing.T) {
 	if stack == 0 {
 		t.Fatalf("no rim washers proposed: %+v", rep.Changes)
 	}
-	want := lawOfCosines(32, 3, 38, 600-2*stack, 35, 2.6)
+	want := lawOfCosines(32, 3, 38, 600+2*stack, 35, 2.6)
 	if d := rep.Left.LengthMM - want; d > 1e-9 || d < -1e-9 {
-		t.Errorf("left length %.9f, want %.9f with a %.2f mm nipple-seat correction", rep.Left.LengthMM, want, stack)
+		t.Errorf("left length %.9f, want %.9f with %.2f mm washers under the nipple heads", rep.Left.LengthMM, want, stack)
 	}
-	if !strings.Contains(strings.Join(rep.Cautions, " "), "already include") {
+	if !strings.Contains(strings.Join(rep.Cautions, " "), "include the 0.5 mm") {
 		t.Errorf("cautions do not say the lengths include the correction: %v", rep.Cautions)
 	}
 }
@@ -283,7 +284,7 @@ func TestCompatibilityBadInput(t *testing.T) {
 		{"erd above the bsd", rep(`"erd_mm": 600`, `"erd_mm": 630`), 422, "/rim/erd_mm"},
 		{"missing nipple", rep(`"nipple": {"thread": {"diameter_mm": 2.0, "tpi": 56}, "shank_diameter_mm": 3.9, "head_diameter_mm": 5.6,
              "length_mm": 12, "material": "brass"},`, ``), 400, ""},
-		{"no spoke size", rep(`"diameter_mm": 2.0, "material"`, `"material"`), 400, "/spoke"},
+		{"no spoke size", rep(`"diameter_mm": 2.0, "material"`, `"material"`), 400, "/spoke/diameter_mm"},
 		{"unknown material", rep(`"material": "stainless_steel"`, `"material": "unobtainium"`), 400, "/spoke/material"},
 		{"absurd tension", rep(`"target_tension_n": 1000`, `"target_tension_n": 1e9`), 400, "/target_tension_n"},
 		{"crosses for half the wheel", rep(`"left": 3, "right": 3`, `"left": 8, "right": 3`), 422, "/crosses/left"},

@@ -241,7 +241,7 @@ func (pt *batchPart) add(raw []byte, decoded bool) {
 		pt.w = geometry.Wheel{}
 		err = decodeBytes(raw, &pt.w)
 	}
-	var res geometry.Result
+	var res service.SpokeLengthResult
 	if err == nil {
 		res, err = pt.s.svc.SpokeLengths(pt.w)
 	}

@@ -10,6 +10,7 @@ import (
 	"github.com/labstack/echo/v4"
 
 	"wheelbench/service"
+	"wheelbench/service/spoke"
 	"wheelbench/strictjson"
 )
 
@@ -323,7 +324,7 @@ func toCalibrationUsed(cal *service.Calibration) *calibrationUsedJSON {
 type conversionJSON struct {
 	CalibrationID    *uuid.UUID             `json:"calibration_id"`
 	Calibration      *inlineCalibrationJSON `json:"calibration"`
-	Spoke            service.SpokeSpec      `json:"spoke"`
+	Spoke            spoke.Spec             `json:"spoke"`
 	Readings         []float64              `json:"readings"`
 	TargetTensionN   *float64               `json:"target_tension_n"`
 	TargetTensionKgf *float64               `json:"target_tension_kgf"`
@@ -350,9 +351,9 @@ func (s *Server) convertTension(c echo.Context) error {
 type auditJSON struct {
 	CalibrationID           *uuid.UUID             `json:"calibration_id"`
 	Calibration             *inlineCalibrationJSON `json:"calibration"`
-	Spoke                   service.SpokeSpec      `json:"spoke"`
-	SpokeLeft               *service.SpokeSpec     `json:"spoke_left"`
-	SpokeRight              *service.SpokeSpec     `json:"spoke_right"`
+	Spoke                   spoke.Spec             `json:"spoke"`
+	SpokeLeft               *spoke.Spec            `json:"spoke_left"`
+	SpokeRight              *spoke.Spec            `json:"spoke_right"`
 	Readings                []service.AuditReading `json:"readings"`
 	TargetTensionN          *float64               `json:"target_tension_n"`
 	TargetTensionKgf        *float64               `json:"target_tension_kgf"`

@@ -401,8 +401,11 @@ func TestChart(t *testing.T) {
 	if r.Header.Get("Content-Type") != "image/svg+xml" || !strings.HasPrefix(svg, "<svg") {
 		t.Fatalf("content type %q, body %.80s", r.Header.Get("Content-Type"), svg)
 	}
-	if !strings.Contains(svg, "requested: round 2.6 mm") || !strings.Contains(svg, `class="band"`) {
-		t.Error("the chart lacks the requested 2.6 mm curve with its band")
+	if !strings.Contains(svg, "requested: round 2.6 mm") || !strings.Contains(svg, `class="band extrapolated"`) {
+		t.Error("the chart lacks the requested 2.6 mm curve with its band, extrapolated")
+	}
+	if !strings.Contains(svg, "Tensiometer bench tensiometer · serial not recorded · calibration version 1") {
+		t.Error("the chart's title does not name the tool and the calibration version")
 	}
 	if n := strings.Count(svg, `class="curve"`); n != 5 {
 		t.Errorf("%d curves, want the four columns and the requested section", n)
@@ -472,4 +475,203 @@ func TestOtherOrganisationsCalibrationID(t *testing.T) {
 	audit := map[string]any{"calibration_id": cal.ID, "spoke": steel(2.0), "readings": []any{map[string]any{"side": "left", "spoke": 0, "reading": rd}}}
 	e.want(e.do("POST", "/v1/tension-audits", e.keyB, audit), 404).problem(t)
 	e.want(e.do("POST", "/v1/tension-conversions", e.keyA[service.RoleRead], body), 200)
+}
+
+// auditOut is the part of a TensionAudit the target-side tests read.
+type auditOut struct {
+	TargetSide string `json:"target_side"`
+	Sides      []struct {
+		Side  string  `json:"side"`
+		AimN  float64 `json:"aim_n"`
+		MeanN float64 `json:"mean_n"`
+	} `json:"sides"`
+	Spokes []struct {
+		Side     string  `json:"side"`
+		Spoke    int     `json:"spoke"`
+		TensionN float64 `json:"tension_n"`
+		VsAimPct float64 `json:"vs_aim_pct"`
+		Action   string  `json:"action"`
+	} `json:"spokes"`
+	Geometric *float64                `json:"geometric_left_right_ratio"`
+	Warnings  []struct{ Code string } `json:"warnings"`
+}
+
+func (a auditOut) aims() map[string]float64 {
+	m := map[string]float64{}
+	for _, s := range a.Sides {
+		m[s.Side] = s.AimN
+	}
+	return m
+}
+
+func hasCode(ws []struct{ Code string }, code string) bool {
+	for _, w := range ws {
+		if w.Code == code {
+			return true
+		}
+	}
+	return false
+}
+
+// TestAuditDiscFront: an invented disc front, 10 spokes a side read with
+// the synthetic tool on 2.0 mm steel. The rotor (left) side is the tighter
+// one, geometric ratio T_left/T_right = 1.213, built to 1150 N: left
+// spokes at 1150 N, right at 1150/1.213 = 948.0627 N (by hand: 1.213 × 948
+// = 1149.924, 0.076/1.213 = 0.0627). The target is the tighter side's,
+// so the left is aimed at 1150 N and the right at 948.06 N, and every
+// spoke is ok. (Before, the target went to the right by default and the
+// rotor side was aimed at 1150 × 1.213 = 1395 N.) Readings are rounded to
+// whole dial units as a builder reads them (12–20 N per unit at 2.0 mm,
+// about 1 %, well inside the ±10 % tolerance).
+func TestAuditDiscFront(t *testing.T) {
+	e := newEnv(t)
+	cal := e.publish(e.newTool(), e.synthColumns(1.5, 1.8, 2.0, 2.3))
+	const target, ratio = 1150.0, 1.213
+	var readings []map[string]any
+	for i := range 10 {
+		readings = append(readings,
+			map[string]any{"side": "left", "spoke": i, "reading": math.Round(e.synthReading(steel(2.0), target))},
+			map[string]any{"side": "right", "spoke": i, "reading": math.Round(e.synthReading(steel(2.0), target/ratio))})
+	}
+	body := func(extra map[string]any) map[string]any {
+		b := map[string]any{"calibration_id": cal.ID, "spoke": steel(2.0), "readings": readings}
+		for k, v := range extra {
+			b[k] = v
+		}
+		return b
+	}
+	audit := func(extra map[string]any) auditOut {
+		var a auditOut
+		e.want(e.do("POST", "/v1/tension-audits", e.keyA[service.RoleRead], body(extra)), 200).json(t, &a)
+		return a
+	}
+	a := audit(map[string]any{"target_tension_n": target, "geometric_left_right_ratio": ratio})
+	if aims := a.aims(); a.TargetSide != "left" || aims["left"] != 1150 || math.Abs(aims["right"]-948.0627) > 1e-4 {
+		t.Errorf("target side %q, aims %v; want left 1150 N, right 948.0627 N", a.TargetSide, aims)
+	}
+	for _, sp := range a.Spokes {
+		if sp.Action != "ok" {
+			t.Errorf("%s spoke %d: %.0f N, %+.1f %% from its aim: %s", sp.Side, sp.Spoke, sp.TensionN, sp.VsAimPct, sp.Action)
+		}
+	}
+	// The same in kgf: 1150 N = 1150/9.80665 kgf (CGPM 1901); the target is
+	// still the tighter side's.
+	k := audit(map[string]any{"target_tension_kgf": target / 9.80665, "geometric_left_right_ratio": ratio})
+	if aims := k.aims(); k.TargetSide != "left" || math.Abs(aims["left"]-1150) > 1e-9 {
+		t.Errorf("kgf target: %q %v", k.TargetSide, aims)
+	}
+	// target_side naming the tighter side agrees; the slacker side is a 422
+	// at /target_side that states the rule.
+	if l := audit(map[string]any{"target_tension_n": target, "geometric_left_right_ratio": ratio, "target_side": "left"}); !cmp.Equal(l.aims(), a.aims()) {
+		t.Errorf("target_side left: aims %v", l.aims())
+	}
+	p := e.want(e.do("POST", "/v1/tension-audits", e.keyA[service.RoleRead],
+		body(map[string]any{"target_tension_n": target, "geometric_left_right_ratio": ratio, "target_side": "right"})), 422).problem(t)
+	wantPointer(t, p, "/target_side")
+	if len(p.Errors) == 0 || !strings.Contains(p.Errors[0].Message, "tighter side is the left") {
+		t.Errorf("the 422 does not explain the rule: %+v", p)
+	}
+	// Without the ratio: both sides get the target, with a warning.
+	n := audit(map[string]any{"target_tension_n": target})
+	if aims := n.aims(); n.TargetSide != "both" || aims["right"] != 1150 || !hasCode(n.Warnings, "no_geometric_ratio") {
+		t.Errorf("no ratio: %q %v %+v", n.TargetSide, aims, n.Warnings)
+	}
+}
+
+// TestBuildAuditDiscFront: a build's tension audit follows the same rule,
+// with the ratio from the build's snapshot. An invented disc front hub
+// whose left (rotor side) flange sits 25 mm from the centre plane and the
+// right 35 mm: the left spokes brace at the smaller angle, so the left is
+// the tighter side (T_left·sin β_L = T_right·sin β_R) and the ratio is
+// above 1. The audit aims each side at the snapshot's own target tension.
+func TestBuildAuditDiscFront(t *testing.T) {
+	e := newEnv(t)
+	w := e.keyA[service.RoleWrite]
+	loc := e.newLocation()
+	var tool struct{ ID uuid.UUID }
+	e.want(e.do("POST", "/v1/tools", w, map[string]any{"label": "bench tensiometer", "location_id": loc}), 201).json(t, &tool)
+	cal := e.publish(tool.ID, e.synthColumns(1.5, 1.8, 2.0, 2.3))
+	hub := map[string]any{}
+	for k, v := range hubDims {
+		hub[k] = v
+	}
+	hub["left"] = map[string]any{"pcd_mm": 45, "center_to_flange_mm": 25, "hole_diameter_mm": 2.6, "thickness_mm": 3}
+	spec := inlineSpec()
+	spec["hub"] = hub
+	var b struct {
+		ID       uuid.UUID `json:"id"`
+		Snapshot struct {
+			TargetTensionsN struct{ Left, Right float64 } `json:"target_tensions_n"`
+			Compatibility   struct {
+				Geometry struct {
+					Ratio float64 `json:"tension_ratio_left_to_right"`
+				} `json:"geometry"`
+			} `json:"compatibility"`
+		} `json:"snapshot"`
+	}
+	e.want(e.do("POST", "/v1/builds", w, map[string]any{"spec": spec, "location_id": loc}), 201).json(t, &b)
+	tt, ratio := b.Snapshot.TargetTensionsN, b.Snapshot.Compatibility.Geometry.Ratio
+	// The snapshot keeps tensions to 0.1 mN.
+	if !(ratio > 1) || tt.Left != 1000 || math.Abs(tt.Right-1000/ratio) > 1e-4 {
+		t.Fatalf("disc front snapshot: ratio %v, targets %+v (want left 1000 N, right 1000/ratio)", ratio, tt)
+	}
+	var readings []map[string]any
+	for i := range 16 {
+		readings = append(readings,
+			map[string]any{"side": "left", "spoke": i, "reading": math.Round(e.synthReading(steel(2.0), tt.Left))},
+			map[string]any{"side": "right", "spoke": i, "reading": math.Round(e.synthReading(steel(2.0), tt.Right))})
+	}
+	var got struct {
+		Result auditOut `json:"result"`
+	}
+	e.want(e.do("POST", "/v1/builds/"+b.ID.String()+"/tension-audits", w, map[string]any{"calibration_id": cal.ID, "readings": readings}), 201).json(t, &got)
+	a := got.Result
+	aims := a.aims()
+	if a.TargetSide != "left" || aims["left"] != tt.Left || math.Abs(aims["right"]-tt.Right) > 1e-4 || a.Geometric == nil || *a.Geometric != ratio {
+		t.Errorf("build audit: target side %q, aims %v, ratio %v; snapshot targets %+v, ratio %v", a.TargetSide, aims, a.Geometric, tt, ratio)
+	}
+	for _, sp := range a.Spokes {
+		if sp.Action != "ok" {
+			t.Errorf("%s spoke %d: %s", sp.Side, sp.Spoke, sp.Action)
+		}
+	}
+}
+
+// TestConversionEdges: through HTTP, gauge 13 (BS 3737: 0.092 in =
+// 2.3368 mm) just beyond the synthetic table's 2.3 mm column, read at the
+// synthetic tool's reading for 575 N, where the column itself is
+// unreliable (one dial unit is over 20 N there): the gauge-13 answer is not
+// reliable either and says its interval was widened. A bladed spoke on the
+// round-only table carries profile_not_in_calibration.
+func TestConversionEdges(t *testing.T) {
+	e := newEnv(t)
+	cal := e.publish(e.newTool(), e.synthColumns(1.5, 1.8, 2.0, 2.3))
+	conv := func(spec service.SpokeSpec, truth float64) resultOut {
+		out, _ := e.convert(map[string]any{"calibration_id": cal.ID, "spoke": spec, "readings": []float64{e.synthReading(spec, truth)}}, 200)
+		return out.Results[0]
+	}
+	col := conv(steel(2.3), 575)
+	if col.Reliable || col.Method != "column_monotone_cubic" {
+		t.Fatalf("the 2.3 mm column at 575 N: reliable %v method %s; the case needs it unreliable", col.Reliable, col.Method)
+	}
+	g13 := conv(steel(2.3368), 575)
+	share := func(r resultOut) float64 { return (r.IntervalN[1] - r.IntervalN[0]) / 2 / r.TensionN }
+	if g13.Reliable || !hasCode(g13.Warnings, "interval_widened_to_calibration") || share(g13) <= share(col) || len(g13.Cautions) < 2 {
+		t.Errorf("gauge 13 at 575 N: reliable %v, ±%.2f %% beside the column's ±%.2f %%, warnings %+v", g13.Reliable, 100*share(g13), 100*share(col), g13.Warnings)
+	}
+	blade := service.SpokeSpec{Profile: "bladed", WidthMM: 2.3, ThicknessMM: 1.3, Material: "stainless_steel"}
+	bl := conv(blade, 1000)
+	if !hasCode(bl.Warnings, "profile_not_in_calibration") || bl.Status != "extrapolated" || len(bl.Cautions) == 0 {
+		t.Errorf("bladed: status %s warnings %+v cautions %q", bl.Status, bl.Warnings, bl.Cautions)
+	}
+	var tg struct {
+		Target struct {
+			Warnings []struct{ Code string } `json:"warnings"`
+		} `json:"target"`
+	}
+	_, r := e.convert(map[string]any{"calibration_id": cal.ID, "spoke": blade, "target_tension_n": 1000}, 200)
+	r.json(t, &tg)
+	if !hasCode(tg.Target.Warnings, "profile_not_in_calibration") {
+		t.Errorf("bladed target: warnings %+v", tg.Target.Warnings)
+	}
 }

@@ -6,6 +6,7 @@ import (
 	"strconv"
 
 	"wheelbench/service/geometry"
+	"wheelbench/service/spoke"
 )
 
 // A fast path for decoding batch wheels. A general decoder spends about
@@ -31,7 +32,7 @@ type wheelParser struct {
 type arena struct {
 	f  []float64
 	n  []int
-	sp []geometry.Spoke
+	sp []spoke.Spec
 	st []geometry.Stock
 }
 
@@ -70,14 +71,14 @@ func (a *arena) int(v int) *int {
 	return &a.n[len(a.n)-1]
 }
 
-func (a *arena) spoke() *geometry.Spoke {
+func (a *arena) spoke() *spoke.Spec {
 	if a == nil {
-		return new(geometry.Spoke)
+		return new(spoke.Spec)
 	}
 	if len(a.sp) == cap(a.sp) {
-		a.sp = make([]geometry.Spoke, 0, 4)
+		a.sp = make([]spoke.Spec, 0, 4)
 	}
-	a.sp = append(a.sp, geometry.Spoke{})
+	a.sp = append(a.sp, spoke.Spec{})
 	return &a.sp[len(a.sp)-1]
 }
 
@@ -139,6 +140,8 @@ func parseWheelAt(b []byte, at int, w *geometry.Wheel, a *arena) (end int, ok bo
 		case "stock":
 			w.Stock = p.a.stock()
 			p.stock(w.Stock)
+		case "include_lacing":
+			w.IncludeLacing = p.boolean()
 		default:
 			return false
 		}
@@ -152,6 +155,12 @@ func (p *wheelParser) hub(h *geometry.Hub) {
 		switch string(k) {
 		case "type":
 			h.Type = p.str()
+		case "kind":
+			h.Kind = p.str()
+		case "brake":
+			h.Brake = p.str()
+		case "holes":
+			h.Holes = p.integer()
 		case "left":
 			p.flange(&h.Left)
 		case "right":
@@ -182,6 +191,12 @@ func (p *wheelParser) flange(f *geometry.Flange) {
 			f.ThicknessMM = p.numPtr()
 		case "spoke_exit_offset_mm":
 			f.SpokeExitOffsetMM = p.numPtr()
+		case "spokes":
+			f.Spokes = p.intPtr()
+		case "exit":
+			f.Exit = p.str()
+		case "exit_angle_deg":
+			f.ExitAngleDeg = p.numPtr()
 		default:
 			return false
 		}
@@ -217,29 +232,43 @@ func (p *wheelParser) rim(r *geometry.Rim) {
 	})
 }
 
-func (p *wheelParser) spoke(s *geometry.Spoke) {
+func (p *wheelParser) spoke(s *spoke.Spec) {
 	p.object(func(k []byte) bool {
 		switch string(k) {
 		case "diameter_mm":
 			s.DiameterMM = p.numPtr()
 		case "gauge":
 			s.Gauge = p.intPtr()
+		case "profile":
+			s.Profile = spoke.Profile(p.str())
+		case "width_mm":
+			s.WidthMM = p.numPtr()
+		case "thickness_mm":
+			s.ThicknessMM = p.numPtr()
 		case "material":
 			s.Material = p.str()
 		case "e_gpa":
 			s.EGPa = p.numPtr()
 		case "head_diameter_mm":
 			s.HeadDiameterMM = p.numPtr()
+		case "measured_section":
+			s.MeasuredSection = p.str()
 		case "sections":
-			s.Sections = []geometry.Section{}
+			s.Sections = []spoke.Butt{}
 			p.array(func() {
-				var sec geometry.Section
+				var sec spoke.Butt
 				p.object(func(k []byte) bool {
 					switch string(k) {
 					case "length_mm":
 						sec.LengthMM = p.number()
 					case "diameter_mm":
-						sec.DiameterMM = p.number()
+						sec.DiameterMM = p.numPtr()
+					case "profile":
+						sec.Profile = spoke.Profile(p.str())
+					case "width_mm":
+						sec.WidthMM = p.numPtr()
+					case "thickness_mm":
+						sec.ThicknessMM = p.numPtr()
 					default:
 						return false
 					}

@@ -13,7 +13,9 @@ import (
 	"github.com/go-json-experiment/json/jsontext"
 
 	"wheelbench/service"
+	"wheelbench/service/fit"
 	"wheelbench/service/geometry"
+	"wheelbench/service/spoke"
 	"wheelbench/strictjson"
 )
 
@@ -121,7 +123,7 @@ func TestAppendResultMatches(t *testing.T) {
 	rng := rand.New(rand.NewPCG(1, 2))
 	fp := func(v float64) *float64 { return &v }
 	ip := func(v int) *int { return &v }
-	check := func(r geometry.Result) {
+	check := func(r service.SpokeLengthResult) {
 		want, err := json.Marshal(r)
 		if err != nil {
 			t.Fatal(err)
@@ -144,17 +146,29 @@ func TestAppendResultMatches(t *testing.T) {
 				Right:     geometry.Flange{PCDMM: 20 + rng.Float64()*140, CenterToFlangeMM: 5 + rng.Float64()*40},
 				DiscBrake: rng.IntN(2) == 0, Driven: rng.IntN(2) == 0, Motor: rng.IntN(4) == 0,
 			},
-			Rim:     geometry.Rim{ERDMM: 200 + rng.Float64()*450, SpokeHoleOffsetMM: rng.Float64()*4 - 2},
-			Crosses: geometry.Cross{Left: ip(rng.IntN(4)), Right: ip(rng.IntN(4))},
+			Rim:           geometry.Rim{ERDMM: 200 + rng.Float64()*450, SpokeHoleOffsetMM: rng.Float64()*4 - 2},
+			Crosses:       geometry.Cross{Left: ip(rng.IntN(4)), Right: ip(rng.IntN(4))},
+			IncludeLacing: rng.IntN(8) == 0,
+		}
+		switch rng.IntN(6) {
+		case 0: // uneven
+			nl := 2 * (n / 6)
+			w.Hub.Left.Spokes, w.Hub.Right.Spokes = ip(nl), ip(n-nl)
+		case 1: // seated spokes
+			w.Hub.Type = geometry.StraightPull
+			w.Hub.Left.HoleDiameterMM = nil
+			if rng.IntN(2) == 0 {
+				w.Hub.Right.Exit, w.Hub.Right.ExitAngleDeg = geometry.ExitAngled, fp(90*rng.Float64())
+			}
 		}
 		if rng.IntN(2) == 0 {
-			w.Spoke = &geometry.Spoke{DiameterMM: fp(1.5 + rng.Float64())}
+			w.Spoke = &spoke.Spec{DiameterMM: fp(1.5 + rng.Float64())}
 			w.TargetTensionN = fp(200 + rng.Float64()*2000)
 		}
 		if rng.IntN(2) == 0 {
 			w.Stock = &geometry.Stock{IncrementMM: fp(1 + float64(rng.IntN(3)))}
 		}
-		r, err := geometry.Compute(w)
+		r, err := testService().SpokeLengths(w)
 		if err != nil {
 			continue
 		}
@@ -164,15 +178,20 @@ func TestAppendResultMatches(t *testing.T) {
 	if results < 1000 {
 		t.Fatalf("only %d random wheels computed; the generator is off", results)
 	}
-	edge := geometry.Result{
-		Left:                    geometry.SideResult{LengthMM: 1e21, BracingAngleDeg: 1e-7, HubAngleDeg: math.Copysign(0, -1), TensionN: fp(5e-324)},
+	edge := service.SpokeLengthResult{Result: geometry.Result{
+		Left: geometry.SideResult{LengthMM: 1e21, BracingAngleDeg: 1e-7, HubAngleDeg: math.Copysign(0, -1), TensionN: fp(5e-324),
+			ExitAngleDeg: fp(1e-7), LengthGroups: []geometry.LengthGroup{{LengthMM: 1, Count: 2, SpokeEndMM: fp(-0.5)}, {LengthMM: 2e-7, Count: 1}}},
 		Right:                   geometry.SideResult{LengthMM: 123456789.125, SpokeEndMM: fp(-1e-6), OrderLengthMM: fp(9.999999999999999e20)},
 		TensionRatioLeftToRight: 1,
-		Findings:                []geometry.Finding{{Code: "x", Severity: "info", Message: `a "quoted" <b> & ° \ line` + "\n" + "\u2028"}},
-		Cautions:                []string{"plain", "ünïcode", "tab\there"},
+		Lacing:                  []geometry.LacingSpoke{{Spoke: 1, Side: "left", RimHoleDeg: 359.99999999999994, HubHoleDeg: 1e-9, Head: "in", Direction: "trailing"}},
+		KeySpoke:                1,
+	},
+		Findings: []fit.Finding{{Code: "x", Severity: "info", Message: `a "quoted" <b> & ° \ line` + "\n" + "\u2028",
+			Remedy: "ü", Values: map[string]float64{"b_mm": 1e-9, "a": 2, "ü": -0.0}, Assumed: []string{"spoke.thread", "<"}, FixedByChange: true}},
+		Cautions: []string{"plain", "ünïcode", "tab\there"},
 	}
 	check(edge)
-	check(geometry.Result{})
+	check(service.SpokeLengthResult{})
 }
 
 // splitWheels is the batch's splitter in one serial pass, as the handler

@@ -8,8 +8,6 @@ import (
 	"unicode/utf8"
 
 	"github.com/google/uuid"
-
-	"wheelbench/service/spoke"
 )
 
 // BuildTensionAudit is a stored tension audit of a built wheel: the
@@ -59,26 +57,20 @@ func (s *Service) RecordBuildAudit(ctx context.Context, p Principal, buildID uui
 		return BuildTensionAudit{}, Unprocessable("/calibration_id", "the calibration has no fitted model")
 	}
 	res := b.Snapshot.Resolved
-	spec := SpokeSpec{Profile: "round", Material: "stainless_steel"}
-	if res.Spoke.Material != nil {
-		spec.Material = *res.Spoke.Material
-	}
-	switch {
-	case res.Spoke.DiameterMM != nil:
-		spec.DiameterMM = *res.Spoke.DiameterMM
-	case res.Spoke.Gauge != nil:
-		spec.DiameterMM, _ = spoke.GaugeDiameterMM(*res.Spoke.Gauge)
-	}
+	// The same rule as POST /v1/tension-audits: the target is the tighter
+	// side's tension and the ratio (T_left/T_right, from the snapshot's
+	// geometry, else from its two target tensions) decides which side that
+	// is and aims the other; no target_side is sent.
 	t := b.Snapshot.TargetTensionsN
-	side, target := "right", t.Right
-	if t.Left > t.Right {
-		side, target = "left", t.Left
-	}
-	req := AuditRequest{Spoke: spec, Readings: in.Readings, TargetSide: side, TolerancePct: in.TolerancePct}
-	if target > 0 {
+	req := AuditRequest{Spoke: res.Spoke, Readings: in.Readings, TolerancePct: in.TolerancePct}
+	if target := max(t.Left, t.Right); target > 0 {
 		req.TargetTensionN = &target
 	}
-	if r := b.Snapshot.Compatibility.Geometry.Ratio; r > 0 {
+	r := b.Snapshot.Compatibility.Geometry.Ratio
+	if !(r > 0) && t.Left > 0 && t.Right > 0 {
+		r = t.Left / t.Right
+	}
+	if r > 0 {
 		req.GeometricLeftRightRatio = &r
 	}
 	result, err := cal.Model.Audit(req)

@@ -100,10 +100,12 @@ type Sides struct {
 
 // TargetReadings are the readings to aim for per side on one tool.
 type TargetReadings struct {
-	ToolID        uuid.UUID       `json:"tool_id"`
-	CalibrationID uuid.UUID       `json:"calibration_id"`
-	Left          json.RawMessage `json:"left"`
-	Right         json.RawMessage `json:"right"`
+	ToolID        uuid.UUID `json:"tool_id"`
+	CalibrationID uuid.UUID `json:"calibration_id"`
+	// MeasuredSection is the section of the spoke the readings are for.
+	MeasuredSection MeasuredSection `json:"measured_section"`
+	Left            json.RawMessage `json:"left"`
+	Right           json.RawMessage `json:"right"`
 }
 
 // BuildParts are the catalog part ids a build uses (nil: given inline).
@@ -122,11 +124,11 @@ type BuildParts struct {
 // fit types, so a spec is decoded once; null counts as absent.
 type BuildSpec struct {
 	SpokeCount     int             `json:"spoke_count"`
-	Hub            *fit.Hub        `json:"hub,omitempty"`
+	Hub            *geometry.Hub   `json:"hub,omitempty"`
 	HubID          *uuid.UUID      `json:"hub_id,omitempty"`
-	Rim            *fit.Rim        `json:"rim,omitempty"`
+	Rim            *geometry.Rim   `json:"rim,omitempty"`
 	RimID          *uuid.UUID      `json:"rim_id,omitempty"`
-	Spoke          *fit.SpokeSpec  `json:"spoke,omitempty"`
+	Spoke          *spoke.Spec     `json:"spoke,omitempty"`
 	SpokeID        *uuid.UUID      `json:"spoke_id,omitempty"`
 	Nipple         *fit.Nipple     `json:"nipple,omitempty"`
 	NippleID       *uuid.UUID      `json:"nipple_id,omitempty"`
@@ -135,7 +137,7 @@ type BuildSpec struct {
 	Tyre           *fit.Tyre       `json:"tyre,omitempty"`
 	TyreID         *uuid.UUID      `json:"tyre_id,omitempty"`
 	FrameSpacingMM *float64        `json:"frame_spacing_mm,omitempty"`
-	Crosses        fit.Crosses     `json:"crosses"`
+	Crosses        geometry.Cross  `json:"crosses"`
 	TargetTensionN float64         `json:"target_tension_n"`
 	Stock          *geometry.Stock `json:"stock,omitempty"`
 }
@@ -268,8 +270,9 @@ func (s *Service) resolveSpec(ctx context.Context, orgID, locationID uuid.UUID, 
 	if err := errors.Join(errs...); err != nil {
 		return CompatibilityInput{}, parts, "", err
 	}
-	in := CompatibilityInput{Input: fit.Input{SpokeCount: spec.SpokeCount, Hub: *hub, Rim: *rim, Spoke: *spk, Nipple: *nip,
-		Washers: washers, Tyre: tyre, FrameSpacingMM: spec.FrameSpacingMM, Crosses: spec.Crosses, TargetTensionN: spec.TargetTensionN}}
+	in := CompatibilityInput{SpokeCount: spec.SpokeCount, Hub: *hub, Rim: *rim, Spoke: *spk, Nipple: *nip,
+		Washers: washers, Tyre: tyre, FrameSpacingMM: spec.FrameSpacingMM, Crosses: spec.Crosses, TargetTensionN: spec.TargetTensionN,
+		IncludeLacing: true}
 	source := "none"
 	if spec.Stock != nil {
 		in.Stock, source = spec.Stock, "spec"
@@ -314,6 +317,18 @@ func (s *Service) CreateBuild(ctx context.Context, p Principal, in BuildInput) (
 	if err != nil {
 		return Build{}, prefixPointers(err, "/spec")
 	}
+	if proposesStandardWasher(rep) {
+		// A washer to buy is proposed: the catalog's own is proposed
+		// instead when one suits (read only when needed).
+		if resolved.CatalogWashers, err = s.catalogWashers(ctx, p.OrgID); err != nil {
+			return Build{}, err
+		}
+		if len(resolved.CatalogWashers) > 0 {
+			if rep, err = s.CheckCompatibility(resolved); err != nil {
+				return Build{}, prefixPointers(err, "/spec")
+			}
+		}
+	}
 	snap := BuildSnapshot{Parts: parts, Resolved: resolved, StockSource: source, Compatibility: rep,
 		TargetTensionsN: Sides{Left: rep.Left.TensionN, Right: rep.Right.TensionN}, Cautions: rep.Cautions}
 	if tr, cautions := targetReadings(cal, resolved, snap.TargetTensionsN); tr != nil {
@@ -357,25 +372,14 @@ func targetReadings(cal *Calibration, in CompatibilityInput, t Sides) (*TargetRe
 	if cal == nil || cal.Model == nil {
 		return nil, nil
 	}
-	spec := SpokeSpec{Profile: "round", Material: "stainless_steel"}
-	if in.Spoke.Material != nil {
-		spec.Material = *in.Spoke.Material
-	}
-	switch {
-	case in.Spoke.DiameterMM != nil:
-		spec.DiameterMM = *in.Spoke.DiameterMM
-	case in.Spoke.Gauge != nil:
-		d, _ := spoke.GaugeDiameterMM(*in.Spoke.Gauge)
-		spec.DiameterMM = d
-	}
-	out := &TargetReadings{ToolID: cal.ToolID, CalibrationID: cal.ID}
+	out := &TargetReadings{ToolID: cal.ToolID, CalibrationID: cal.ID, MeasuredSection: measuredSectionOf(in.Spoke)}
 	var cautions []string
 	for _, side := range []struct {
 		name string
 		n    float64
 		dst  *json.RawMessage
 	}{{"left", t.Left, &out.Left}, {"right", t.Right, &out.Right}} {
-		tg, err := cal.Model.Target(spec, side.n)
+		tg, err := cal.Model.TargetForSpoke(in.Spoke, side.n)
 		if err != nil {
 			msg := strings.TrimPrefix(err.Error(), "json: ")
 			*side.dst, _ = json.Marshal(map[string]string{"refused": msg})
@@ -386,6 +390,57 @@ func targetReadings(cal *Calibration, in CompatibilityInput, t Sides) (*TargetRe
 		cautions = append(cautions, tg.Cautions...)
 	}
 	return out, cautions
+}
+
+// proposesStandardWasher reports whether rep proposes washers that are
+// neither given nor the catalog's.
+func proposesStandardWasher(rep CompatibilityReport) bool {
+	for _, c := range rep.Changes {
+		if c.Kind == fit.ChangeAddWashers && !c.FromGiven && c.PartID == "" {
+			return true
+		}
+	}
+	return false
+}
+
+// maxCatalogWashers bounds the catalog washers a build considers.
+const maxCatalogWashers = 200
+
+// catalogWashers reads the organisation's washer parts as the fit rules
+// take them, each named by its part id.
+func (s *Service) catalogWashers(ctx context.Context, orgID uuid.UUID) ([]fit.CatalogWasher, error) {
+	ps, err := s.store.ListParts(ctx, orgID, PartFilter{Kind: PartWasher}, Page{Limit: maxCatalogWashers})
+	if err != nil {
+		return nil, err
+	}
+	out := make([]fit.CatalogWasher, 0, len(ps))
+	for _, p := range ps {
+		var w fit.Washer
+		if err := strictjson.Unmarshal(p.Dimensions, &w); err != nil {
+			continue // a part whose dimensions no longer decode is not proposed
+		}
+		out = append(out, fit.CatalogWasher{Washer: w, PartID: p.ID.String()})
+	}
+	return out, nil
+}
+
+// MeasuredSection names the section of a spoke a tensiometer sits on.
+type MeasuredSection struct {
+	Name        string  `json:"name"`
+	Profile     string  `json:"profile"`
+	DiameterMM  float64 `json:"diameter_mm,omitempty"`
+	WidthMM     float64 `json:"width_mm,omitempty"`
+	ThicknessMM float64 `json:"thickness_mm,omitempty"`
+}
+
+func measuredSectionOf(sp spoke.Spec) MeasuredSection {
+	r, _ := sp.Resolve(false)
+	m := r.Measured
+	out := MeasuredSection{Name: r.MeasuredName, Profile: string(m.Profile), DiameterMM: m.DiameterMM, WidthMM: m.WidthMM, ThicknessMM: m.ThicknessMM}
+	if out.Profile == "" {
+		out.Profile = string(spoke.Round)
+	}
+	return out
 }
 
 // GetBuild reads one build.

@@ -4,6 +4,7 @@ import (
 	"runtime"
 	"sync"
 
+	"wheelbench/service/fit"
 	"wheelbench/service/geometry"
 )
 
@@ -11,16 +12,25 @@ import (
 const MaxBatchWheels = 10000
 
 // SpokeLengths computes one wheel: both sides' lengths, angles, tensions,
-// findings and cautions. Bad or impossible input comes back as
-// *geometry.FieldError values (400 or 422), never as NaN or Inf.
-func (s *Service) SpokeLengths(w geometry.Wheel) (geometry.Result, error) {
-	return geometry.Compute(w)
+// and the rule set's findings and cautions on them. Bad or impossible input
+// comes back as *geometry.FieldError values (400 or 422), never as NaN or
+// Inf.
+func (s *Service) SpokeLengths(w geometry.Wheel) (SpokeLengthResult, error) {
+	res, err := geometry.Compute(w)
+	if err != nil {
+		return SpokeLengthResult{}, err
+	}
+	out := SpokeLengthResult{Result: res}
+	out.Findings, out.Cautions = fit.AssessWheel(w, &out.Result, wheelOptions)
+	return out, nil
 }
+
+var wheelOptions = fit.DefaultOptions()
 
 // BatchItem is one wheel's outcome in a batch: a Result, or the error that
 // wheel alone has (the other wheels are unaffected).
 type BatchItem struct {
-	Result geometry.Result
+	Result SpokeLengthResult
 	Err    error
 }
 
@@ -31,7 +41,7 @@ func (s *Service) SpokeLengthsBatch(ws []geometry.Wheel) []BatchItem {
 	out := make([]BatchItem, len(ws))
 	eachChunk(len(ws), func(lo, hi int) {
 		for i := lo; i < hi; i++ {
-			out[i].Result, out[i].Err = geometry.Compute(ws[i])
+			out[i].Result, out[i].Err = s.SpokeLengths(ws[i])
 		}
 	})
 	return out

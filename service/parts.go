@@ -15,6 +15,8 @@ import (
 	"github.com/google/uuid"
 
 	"wheelbench/service/fit"
+	"wheelbench/service/geometry"
+	"wheelbench/service/spoke"
 	"wheelbench/strictjson"
 )
 
@@ -114,11 +116,11 @@ func decodeDimensions(kind PartKind, raw json.RawMessage) (json.RawMessage, erro
 	var target any
 	switch kind {
 	case PartHub:
-		target = &fit.Hub{}
+		target = &geometry.Hub{}
 	case PartRim:
-		target = &fit.Rim{}
+		target = &geometry.Rim{}
 	case PartSpoke:
-		target = &fit.SpokeSpec{}
+		target = &spoke.Spec{}
 	case PartNipple:
 		target = &fit.Nipple{}
 	case PartWasher:

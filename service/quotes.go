@@ -205,8 +205,8 @@ func (s *Service) quoteInput(ctx context.Context, p Principal, b Build, currency
 			}
 		}
 		// Spokes are cut when no stock length was chosen, or when the chosen
-		// one ends long (the geometry's stock_end_long finding).
-		if side.r.StockLengthMM == nil || hasFinding(geometry.Result{Findings: geo.Findings}, geometry.CodeStockEndLong, side.name) {
+		// one ends past the nipple head.
+		if side.r.StockLengthMM == nil || hasFinding(geo.Findings, fit.CodeSpokeProtrudesPastNipple, side.name) {
 			in.Labour.SpokesCut += perSide
 		}
 	}
@@ -215,8 +215,17 @@ func (s *Service) quoteInput(ctx context.Context, p Principal, b Build, currency
 		switch c.Kind {
 		case "add_washers":
 			in.Labour.WashersFitted += int64(c.Count)
-			if len(snap.Parts.Washers) > 0 && c.FromGiven {
-				w, err := part(&snap.Parts.Washers[0])
+			var wid *uuid.UUID
+			switch {
+			case c.PartID != "": // the catalog washer the check proposed
+				if id, err := uuid.Parse(c.PartID); err == nil {
+					wid = &id
+				}
+			case len(snap.Parts.Washers) > 0 && c.FromGiven:
+				wid = &snap.Parts.Washers[0]
+			}
+			if wid != nil {
+				w, err := part(wid)
 				if err != nil {
 					return in, nil, err
 				}
@@ -268,4 +277,14 @@ func (s *Service) GetQuote(ctx context.Context, p Principal, id uuid.UUID) (Quot
 // nothing changes; stock never goes negative.
 func (s *Service) AcceptQuote(ctx context.Context, p Principal, id uuid.UUID) (Quote, error) {
 	return s.store.AcceptQuote(ctx, p.OrgID, id, s.now().UTC())
+}
+
+// hasFinding reports whether fs holds code for side.
+func hasFinding(fs []fit.Finding, code, side string) bool {
+	for _, f := range fs {
+		if f.Code == code && f.Side == side {
+			return true
+		}
+	}
+	return false
 }

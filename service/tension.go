@@ -138,15 +138,21 @@ func (s *Service) AuditTension(ctx context.Context, p Principal, ref Calibration
 	return AuditOutput{Calibration: cal, AuditResult: out}, nil
 }
 
-// CalibrationChart draws a stored calibration version as SVG, with the
-// requested section's curve and 95 % band when spec is not nil. Field
+// CalibrationChart draws a stored calibration version as SVG, titled with
+// its tool's label and serial and the version, with the requested
+// section's curve and 95 % band when spec is not nil. Field
 // errors name the query parameters.
 func (s *Service) CalibrationChart(ctx context.Context, p Principal, id uuid.UUID, spec *SpokeSpec) ([]byte, error) {
-	m, _, err := s.modelFor(ctx, p, CalibrationRef{ID: &id})
+	m, cal, err := s.modelFor(ctx, p, CalibrationRef{ID: &id})
 	if err != nil {
 		return nil, err
 	}
-	svg, err := m.Chart(spec)
+	tool, err := s.store.GetTool(ctx, p.OrgID, cal.ToolID)
+	if err != nil {
+		return nil, fmt.Errorf("calibration %s: tool %s: %w", cal.ID, cal.ToolID, err)
+	}
+	svg, err := m.Chart(spec, tension.ChartHeading{ToolLabel: tool.Label, ToolSerial: tool.Serial,
+		CalibrationVersion: cal.Version, Source: cal.Source, Published: cal.CreatedAt})
 	return svg, queryPointers(err)
 }
 

@@ -3,6 +3,8 @@ package fit
 import (
 	"fmt"
 	"math"
+
+	"wheelbench/service/geometry"
 )
 
 // eps keeps a value exactly at a limit on the passing side despite binary
@@ -13,6 +15,7 @@ const eps = 1e-9
 type washerType struct {
 	thicknessMM, innerMM, outerMM float64
 	fromGiven                     bool
+	partID                        string // a catalog washer's part
 }
 
 // roundUp rounds x up to a multiple of step (ignoring binary noise).
@@ -23,31 +26,40 @@ func roundUp(x, step float64) float64 {
 	return math.Ceil(x/step-1e-9) * step
 }
 
-// hubWasherTypes returns the given washers that suit this flange under this
-// spoke's head, else standard washers of the Options' thicknesses.
-func hubWasherTypes(in Input, p parts, f Flange, opt Options) []washerType {
-	bore := math.Max(p.spokeDiameterMM, p.threadDiameterMM)
+// hubWasherTypes returns the washers that suit this flange under this
+// spoke's head: the given ones, else the catalog's, else standard washers of
+// the Options' thicknesses.
+func hubWasherTypes(in Input, p parts, holeMM float64, opt Options) []washerType {
+	bore := math.Max(p.endMM, p.threadMajorMM)
+	suits := func(w Washer) bool {
+		return w.Where != AtRim && w.InnerDiameterMM >= bore && p.headMM-w.InnerDiameterMM >= opt.HeadBearingMarginMM-eps &&
+			w.OuterDiameterMM-holeMM >= opt.HeadBearingMarginMM-eps
+	}
 	var out []washerType
 	for _, w := range in.Washers {
-		if w.Where == AtRim {
-			continue
+		if suits(w) {
+			out = append(out, washerType{w.ThicknessMM, w.InnerDiameterMM, w.OuterDiameterMM, true, ""})
 		}
-		if w.InnerDiameterMM >= bore && p.headDiameterMM-w.InnerDiameterMM >= opt.HeadBearingMarginMM-eps &&
-			w.OuterDiameterMM-f.HoleDiameterMM >= opt.HeadBearingMarginMM-eps {
-			out = append(out, washerType{w.ThicknessMM, w.InnerDiameterMM, w.OuterDiameterMM, true})
+	}
+	if len(out) > 0 {
+		return out
+	}
+	for _, w := range in.CatalogWashers {
+		if suits(w.Washer) {
+			out = append(out, washerType{w.ThicknessMM, w.InnerDiameterMM, w.OuterDiameterMM, false, w.PartID})
 		}
 	}
 	if len(out) > 0 {
 		return out
 	}
 	inner := roundUp(bore+opt.WasherBoreClearanceMM, 0.1)
-	outer := roundUp(f.HoleDiameterMM+2*opt.HeadBearingMarginMM, 0.1)
-	if p.headDiameterMM-inner < opt.HeadBearingMarginMM-eps {
+	outer := roundUp(holeMM+2*opt.HeadBearingMarginMM, 0.1)
+	if p.headMM-inner < opt.HeadBearingMarginMM-eps {
 		return nil // no washer bore both passes the spoke and holds the head
 	}
 	for _, t := range opt.StandardWasherThicknessesMM {
 		if t > 0 && finite(t) {
-			out = append(out, washerType{t, inner, outer, false})
+			out = append(out, washerType{t, inner, outer, false, ""})
 		}
 	}
 	return out
@@ -83,26 +95,25 @@ func planStack(types []washerType, g float64, opt Options) (best stack, ok bool)
 	return best, ok
 }
 
-// checkFlange runs the hub-side rules for one side.
-func checkFlange(in Input, p parts, side string, f Flange, opt Options) ([]Finding, []Change) {
-	var fs []Finding
-	perSide := in.SpokeCount / 2
-	jbend := hubType(in.Hub) == JBend
-
-	headMargin := p.headDiameterMM - f.HoleDiameterMM
+// checkFlange runs the hub-side parts rules for one side: the head pulling
+// through the hole, and the elbow against the flange's thickness, with the
+// washer stack that fixes them.
+func checkFlange(j *judge, in Input, p parts, side string, f geometry.Flange, seated bool, spokes int, opt Options) {
+	hole, thick := *f.HoleDiameterMM, *f.ThicknessMM
+	headMargin := p.headMM - hole
 	pullThrough := headMargin < opt.HeadBearingMarginMM-eps
-	g := p.elbowLengthMM - f.ThicknessMM
-	gap := jbend && g > opt.ElbowGapToleranceMM+eps
-	short := jbend && g < -opt.ElbowShortToleranceMM-eps
+	g := p.elbowMM - thick
+	gap := !seated && g > opt.ElbowGapToleranceMM+eps
+	short := !seated && g < -opt.ElbowShortToleranceMM-eps
 
 	var plan stack
 	planned := false
 	if (pullThrough || gap) && !short {
-		types := hubWasherTypes(in, p, f, opt)
-		if jbend {
+		types := hubWasherTypes(in, p, hole, opt)
+		if !seated {
 			plan, planned = planStack(types, g, opt)
 		} else if len(types) > 0 {
-			// Straight-pull: no elbow, one washer of the thinnest kind.
+			// Seated spokes: no elbow, one washer of the thinnest kind.
 			plan, planned = stack{w: types[0], n: 1}, true
 			for _, w := range types[1:] {
 				if w.thicknessMM < plan.w.thicknessMM {
@@ -119,11 +130,11 @@ func checkFlange(in Input, p parts, side string, f Flange, opt Options) ([]Findi
 
 	if pullThrough {
 		fd := Finding{
-			Code: CodeSpokeHeadPullsThrough, Severity: Error, Side: side,
+			Code: CodeSpokeHeadPullsThrough, Side: side,
 			Message: fmt.Sprintf("The %.4g mm spoke head is only %.3g mm larger than the %.4g mm %s flange hole (needs %.3g mm): it can pull through.",
-				p.headDiameterMM, headMargin, f.HoleDiameterMM, side, opt.HeadBearingMarginMM),
+				p.headMM, round4(headMargin), hole, side, opt.HeadBearingMarginMM),
 			Values: map[string]float64{
-				"head_diameter_mm": p.headDiameterMM, "hole_diameter_mm": f.HoleDiameterMM,
+				"head_diameter_mm": p.headMM, "hole_diameter_mm": hole,
 				"margin_mm": round4(headMargin), "required_margin_mm": opt.HeadBearingMarginMM,
 			},
 			Assumed:       p.assumedOf("spoke.head_diameter_mm"),
@@ -133,31 +144,18 @@ func checkFlange(in Input, p parts, side string, f Flange, opt Options) ([]Findi
 			fd.Remedy = "Fit " + stackText + " so the head bears on the washer and the washer on the flange."
 		} else {
 			fd.Remedy = fmt.Sprintf("Use spokes with heads of at least %.4g mm, or a hub with smaller holes; no washer stack suits this elbow and head.",
-				f.HoleDiameterMM+opt.HeadBearingMarginMM)
+				hole+opt.HeadBearingMarginMM)
 		}
-		fs = append(fs, fd)
-	}
-
-	if clearance := f.HoleDiameterMM - p.spokeDiameterMM; clearance > opt.LooseHoleClearanceMM+eps {
-		fs = append(fs, Finding{
-			Code: CodeSpokeLooseInFlangeHole, Severity: Warning, Side: side,
-			Message: fmt.Sprintf("The %.4g mm %s flange holes are %.3g mm larger than the %.4g mm spoke (more than %.3g mm): the elbow can work in the hole and fatigue.",
-				f.HoleDiameterMM, side, clearance, p.spokeDiameterMM, opt.LooseHoleClearanceMM),
-			Remedy: "Prefer a thicker spoke that suits the hole, or washers whose bore fits the spoke under the heads; check the elbows after the first rides.",
-			Values: map[string]float64{
-				"hole_diameter_mm": f.HoleDiameterMM, "spoke_diameter_mm": round4(p.spokeDiameterMM),
-				"clearance_mm": round4(clearance), "max_clearance_mm": opt.LooseHoleClearanceMM,
-			},
-		})
+		j.add(fd)
 	}
 
 	if gap {
 		fd := Finding{
-			Code: CodeElbowGap, Severity: Error, Side: side,
+			Code: CodeElbowGap, Side: side,
 			Message: fmt.Sprintf("The %.4g mm elbow is %.3g mm longer than the %.4g mm %s flange is thick (tolerance %.3g mm): the head stands off the flange and the elbow flexes.",
-				p.elbowLengthMM, g, f.ThicknessMM, side, opt.ElbowGapToleranceMM),
+				p.elbowMM, round4(g), thick, side, opt.ElbowGapToleranceMM),
 			Values: map[string]float64{
-				"elbow_length_mm": p.elbowLengthMM, "flange_thickness_mm": f.ThicknessMM,
+				"elbow_length_mm": p.elbowMM, "flange_thickness_mm": thick,
 				"gap_mm": round4(g), "tolerance_mm": opt.ElbowGapToleranceMM,
 			},
 			Assumed:       p.assumedOf("spoke.elbow_length_mm"),
@@ -172,27 +170,26 @@ func checkFlange(in Input, p parts, side string, f Flange, opt Options) ([]Findi
 			fd.Values["stack_mm"] = round4(float64(plan.n) * plan.w.thicknessMM)
 		} else {
 			fd.Remedy = fmt.Sprintf("No stack of at most %d washers closes a %.3g mm gap; use spokes with an elbow for a %.4g mm flange.",
-				opt.MaxWashersPerSpoke, g, f.ThicknessMM)
+				opt.MaxWashersPerSpoke, round4(g), thick)
 		}
-		fs = append(fs, fd)
+		j.add(fd)
 	}
 
 	if short {
-		fs = append(fs, Finding{
-			Code: CodeElbowTooShort, Severity: Error, Side: side,
+		j.add(Finding{
+			Code: CodeElbowTooShort, Side: side,
 			Message: fmt.Sprintf("The %.4g mm elbow is %.3g mm shorter than the %.4g mm %s flange is thick (tolerance %.3g mm): the head cannot seat.",
-				p.elbowLengthMM, -g, f.ThicknessMM, side, opt.ElbowShortToleranceMM),
-			Remedy: fmt.Sprintf("Use spokes with an elbow of about %.4g mm for this flange.", f.ThicknessMM),
+				p.elbowMM, round4(-g), thick, side, opt.ElbowShortToleranceMM),
+			Remedy: fmt.Sprintf("Use spokes with an elbow of about %.4g mm for this flange.", thick),
 			Values: map[string]float64{
-				"elbow_length_mm": p.elbowLengthMM, "flange_thickness_mm": f.ThicknessMM,
+				"elbow_length_mm": p.elbowMM, "flange_thickness_mm": thick,
 				"shortfall_mm": round4(-g), "tolerance_mm": opt.ElbowShortToleranceMM,
 			},
 			Assumed: p.assumedOf("spoke.elbow_length_mm"),
 		})
 	}
 
-	var cs []Change
-	if planned {
+	if planned && (pullThrough || gap) {
 		var fixes []string
 		if pullThrough {
 			fixes = append(fixes, CodeSpokeHeadPullsThrough)
@@ -200,16 +197,12 @@ func checkFlange(in Input, p parts, side string, f Flange, opt Options) ([]Findi
 		if gap {
 			fixes = append(fixes, CodeElbowGap)
 		}
-		cs = append(cs, Change{
+		j.cs = append(j.cs, Change{
 			Kind: ChangeAddWashers, Where: AtHub, Side: side,
-			PerSpoke: plan.n, Count: plan.n * perSide,
+			PerSpoke: plan.n, Count: plan.n * spokes,
 			ThicknessMM: ptr(plan.w.thicknessMM), InnerDiameterMM: ptr(plan.w.innerMM), OuterDiameterMM: ptr(plan.w.outerMM),
-			StackMM: ptr(round4(float64(plan.n) * plan.w.thicknessMM)), FromGiven: plan.w.fromGiven,
+			StackMM: ptr(round4(float64(plan.n) * plan.w.thicknessMM)), FromGiven: plan.w.fromGiven, PartID: plan.w.partID,
 			Fixes: fixes,
 		})
 	}
-	return fs, cs
 }
-
-// round4 rounds to 0.0001 for values shown to people; −0 becomes 0.
-func round4(x float64) float64 { return math.Round(x*1e4)/1e4 + 0 }

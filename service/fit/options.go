@@ -10,6 +10,32 @@ import (
 // "common practice" and values recalled without a source "from memory". Start
 // from DefaultOptions and override what the shop decides otherwise.
 type Options struct {
+	// MinBracingAngleDeg: a lower bracing angle gives low_bracing_angle;
+	// below about 3° a side barely resists lateral load. Common practice.
+	MinBracingAngleDeg float64 `json:"min_bracing_angle_deg"`
+	// MaxTensionRatio: a higher tight/slack tension ratio gives
+	// tension_ratio_high. Common practice.
+	MaxTensionRatio float64 `json:"max_tension_ratio"`
+	// MaxNippleAngleDeg: a larger total angle between spoke and rim radius
+	// at the nipple gives nipple_angle_high. Common practice.
+	MaxNippleAngleDeg float64 `json:"max_nipple_angle_deg"`
+	// RimTurnedMargin: a rim whose offset, turned round, would bring the
+	// tension ratio closer to 1 by more than this factor gives
+	// rim_offset_reversed. Our own margin against rounding.
+	RimTurnedMargin float64 `json:"rim_turned_margin"`
+	// AluminiumNippleMaxTensionN: aluminium nipples above this target (or
+	// on motor, cargo and tandem hubs) give aluminium_nipple_high_load.
+	// Common practice, from memory.
+	AluminiumNippleMaxTensionN float64 `json:"aluminium_nipple_max_tension_n"`
+	// RolledThreadRiseMaxMM: a rolled thread measures up to this much more
+	// than the wire it was rolled on; a nipple named only by its measured
+	// thread diameter fits spokes of sizes from that diameter less this up
+	// to the diameter itself. From memory.
+	RolledThreadRiseMaxMM float64 `json:"rolled_thread_rise_max_mm"`
+	// TypicalNippleLengthMM is the nipple length assumed when the request
+	// names no nipple (spoke lengths alone). From memory: 12 mm is the
+	// commonest.
+	TypicalNippleLengthMM float64 `json:"typical_nipple_length_mm"`
 	// HeadBearingMarginMM: a spoke head must be at least this much larger in
 	// diameter than the hole (or washer bore) it bears on, else it can pull
 	// through. Common practice.
@@ -48,8 +74,10 @@ type Options struct {
 	// NippleHeadMarginMM: a nipple head must be at least this much larger
 	// than the rim hole (or rim washer bore). Common practice.
 	NippleHeadMarginMM float64 `json:"nipple_head_margin_mm"`
-	// ThreadDiameterToleranceMM: spoke and nipple thread diameters farther
-	// apart than this do not mate. Common practice.
+	// ThreadDiameterToleranceMM: spoke and nipple thread sizes (or two
+	// measured major diameters) farther apart than this do not mate; sizes
+	// come at least 0.2 mm apart, and 2.0 mm is sold as 14 gauge
+	// (2.032 mm). Common practice.
 	ThreadDiameterToleranceMM float64 `json:"thread_diameter_tolerance_mm"`
 	// TPITolerance: thread pitches farther apart (threads per inch) do not
 	// mate. Common practice.
@@ -59,7 +87,9 @@ type Options struct {
 	// softer nut). Common practice.
 	MinThreadEngagementDiameters float64 `json:"min_thread_engagement_diameters"`
 	// MaxSpokeEndPastNippleMM: a spoke end farther than this past the head
-	// end of its nipple can cut the rim tape or tube. Common practice.
+	// end of its nipple can cut the rim tape or tube. Common practice; it is
+	// also the tolerance of choosing the nearest of stock lengths 2 mm
+	// apart, so the nearest length is never judged too long.
 	MaxSpokeEndPastNippleMM float64 `json:"max_spoke_end_past_nipple_mm"`
 	// SpokeSafetyFactor: the highest spoke stress (at the thread's stress
 	// area) must not exceed the material's UTS divided by this. Common
@@ -101,6 +131,13 @@ const (
 // DefaultOptions returns the defaults documented on each Options field.
 func DefaultOptions() Options {
 	return Options{
+		MinBracingAngleDeg:           3,                        // common practice
+		MaxTensionRatio:              2,                        // common practice
+		MaxNippleAngleDeg:            10,                       // common practice
+		RimTurnedMargin:              1.02,                     // our own margin
+		AluminiumNippleMaxTensionN:   1200,                     // common practice, from memory
+		RolledThreadRiseMaxMM:        0.3,                      // from memory
+		TypicalNippleLengthMM:        12,                       // from memory
 		HeadBearingMarginMM:          0.8,                      // common practice
 		LooseHoleClearanceMM:         0.8,                      // common practice
 		ElbowGapToleranceMM:          0.3,                      // common practice
@@ -113,13 +150,13 @@ func DefaultOptions() Options {
 		MaxDrillEnlargementMM:        1.0,                      // common practice
 		AllowDrilling:                true,
 		NippleHeadMarginMM:           0.8,                   // common practice
-		ThreadDiameterToleranceMM:    0.05,                  // common practice
+		ThreadDiameterToleranceMM:    0.1,                   // common practice
 		TPITolerance:                 0.5,                   // common practice
 		MinThreadEngagementDiameters: 2.0,                   // common practice
-		MaxSpokeEndPastNippleMM:      0.5,                   // common practice
+		MaxSpokeEndPastNippleMM:      1.0,                   // common practice
 		SpokeSafetyFactor:            2.5,                   // common practice
 		NearRimLimitFraction:         0.9,                   // common practice
-		MinLowSideTensionN:           400,                   // common practice
+		MinLowSideTensionN:           500,                   // common practice, from memory: about 50 kgf
 		TyreRimRatioRecommended:      [2]float64{1.4, 2.2},  // CTC guidance (B)
 		TyreRimRatioAccepted:         [2]float64{1.05, 2.6}, // common practice, from memory
 		HubSpacingToleranceMM:        1.0,                   // common practice
@@ -133,7 +170,7 @@ var ErrOptions = errors.New("fit: invalid options")
 // validate refuses non-finite or negative margins, a safety factor below 1,
 // and empty or inverted width bands.
 func (o Options) validate() error {
-	nonNeg := []float64{o.HeadBearingMarginMM, o.LooseHoleClearanceMM, o.ElbowGapToleranceMM, o.ElbowShortToleranceMM,
+	nonNeg := []float64{o.MinBracingAngleDeg, o.MaxNippleAngleDeg, o.AluminiumNippleMaxTensionN, o.RolledThreadRiseMaxMM, o.HeadBearingMarginMM, o.LooseHoleClearanceMM, o.ElbowGapToleranceMM, o.ElbowShortToleranceMM,
 		o.WasherBoreClearanceMM, o.RimHoleClearanceMM, o.DrillStepMM, o.MaxDrillEnlargementMM, o.NippleHeadMarginMM,
 		o.ThreadDiameterToleranceMM, o.TPITolerance, o.MinThreadEngagementDiameters, o.MaxSpokeEndPastNippleMM,
 		o.NearRimLimitFraction, o.MinLowSideTensionN, o.HubSpacingToleranceMM, o.BSDToleranceMM}
@@ -141,6 +178,12 @@ func (o Options) validate() error {
 		if !finite(x) || x < 0 {
 			return fmt.Errorf("%w: margins and tolerances must be finite and not negative", ErrOptions)
 		}
+	}
+	if !finite(o.MaxTensionRatio) || o.MaxTensionRatio < 1 || !finite(o.RimTurnedMargin) || o.RimTurnedMargin < 1 {
+		return fmt.Errorf("%w: max_tension_ratio and rim_turned_margin must be at least 1", ErrOptions)
+	}
+	if !finite(o.TypicalNippleLengthMM) || o.TypicalNippleLengthMM <= 0 {
+		return fmt.Errorf("%w: typical_nipple_length_mm must be positive", ErrOptions)
 	}
 	if !finite(o.SpokeSafetyFactor) || o.SpokeSafetyFactor < 1 {
 		return fmt.Errorf("%w: spoke_safety_factor must be at least 1", ErrOptions)

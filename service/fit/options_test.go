@@ -39,14 +39,3 @@ func TestWidthGuidance(t *testing.T) {
 		t.Errorf("defaults invalid: %v", err)
 	}
 }
-
-// TestStressArea: π/4 (d − 0.9382 P)² for 2.0 mm × 56 TPI (ISO 898-1 stress
-// area formula, P = 25.4/56 mm exactly) = 1.946940819 mm², computed with
-// Python; the body π·2²/4 = 3.14159 mm² (BS 3737 / sections.tsv) is larger,
-// so the thread governs.
-func TestStressArea(t *testing.T) {
-	a, err := stressAreaMM2(parts{spokeDiameterMM: 2, threadDiameterMM: 2, threadTPI: 56})
-	if err != nil || a < 1.946940818 || a > 1.946940820 {
-		t.Errorf("stress area %v, %v", a, err)
-	}
-}

@@ -4,9 +4,9 @@ import (
 	"errors"
 	"fmt"
 	"math"
-	"slices"
 	"strconv"
 
+	"wheelbench/service/geometry"
 	"wheelbench/service/spoke"
 )
 
@@ -92,93 +92,64 @@ func (v *validator) count(pointer string, n, max int) bool {
 	return true
 }
 
-func (v *validator) material(pointer string, name *string) {
-	if name == nil {
+func (v *validator) material(pointer string, name string) {
+	if name == "" {
 		return
 	}
-	if _, ok := spoke.LookupMaterial(*name); !ok {
-		v.add(invalid(pointer, "unknown material %q (one of %v)", *name, spoke.MaterialNames()))
+	if _, ok := spoke.LookupMaterial(name); !ok {
+		v.add(invalid(pointer, "unknown material %q (one of %v)", name, spoke.MaterialNames()))
 	}
 }
 
-func (v *validator) thread(pointer string, t Thread) {
-	v.size(pointer+"/diameter_mm", t.DiameterMM, maxPartMM)
-	v.size(pointer+"/tpi", t.TPI, maxTPI)
-}
-
-// Validate checks every field of in and returns nil or the FieldErrors
-// (joined). Check calls it first; callers may call it alone to answer 400/422
-// before computing geometry.
+// Validate checks the members only the fit rules use, and those they need
+// that the geometry takes as optional (flange holes and thickness, the
+// spoke, the nipple, the rim's holes and bead seat). The geometry
+// validates its own members when Check computes it. It returns nil or the
+// FieldErrors (joined).
 func Validate(in Input) error {
 	var v validator
-	spokesOK := v.count("/spoke_count", in.SpokeCount, maxSpokeCount)
-	if spokesOK && in.SpokeCount%2 != 0 {
-		v.add(unprocessable("/spoke_count", "a wheel laced from two flanges needs an even spoke count (got %d)", in.SpokeCount))
-		spokesOK = false
-	}
+	v.count("/spoke_count", in.SpokeCount, maxSpokeCount)
 
 	h := in.Hub
 	v.count("/hub/holes", h.Holes, maxSpokeCount)
-	if h.Kind != "" && !slices.Contains(HubKinds, h.Kind) {
-		v.add(invalid("/hub/kind", "unknown hub kind %q (one of %v)", h.Kind, HubKinds))
-	}
-	if h.Type != "" && h.Type != JBend && h.Type != StraightPull {
-		v.add(invalid("/hub/type", "unknown hub type %q (j_bend or straight_pull)", h.Type))
-	}
 	v.optSize("/hub/spacing_mm", h.SpacingMM, maxHubMM)
 	for _, f := range []struct {
 		side string
-		f    Flange
+		f    geometry.Flange
 	}{{"left", h.Left}, {"right", h.Right}} {
 		p := "/hub/" + f.side
-		pcdOK := v.size(p+"/pcd_mm", f.f.PCDMM, maxHubMM)
-		v.size(p+"/center_to_flange_mm", f.f.CenterToFlangeMM, maxHubMM)
-		holeOK := v.size(p+"/hole_diameter_mm", f.f.HoleDiameterMM, maxPartMM)
-		v.size(p+"/thickness_mm", f.f.ThicknessMM, maxPartMM)
-		if pcdOK && holeOK && f.f.HoleDiameterMM >= f.f.PCDMM {
+		if f.f.HoleDiameterMM == nil {
+			v.add(invalid(p+"/hole_diameter_mm", "is required: the fit rules compare it with the spoke and its head"))
+		} else if v.size(p+"/hole_diameter_mm", *f.f.HoleDiameterMM, maxPartMM) && *f.f.HoleDiameterMM >= f.f.PCDMM && f.f.PCDMM > 0 {
 			v.add(unprocessable(p+"/hole_diameter_mm", "a flange hole cannot be as large as the flange's hole circle"))
+		}
+		if f.f.ThicknessMM == nil {
+			v.add(invalid(p+"/thickness_mm", "is required: the fit rules compare it with the spoke's elbow"))
+		} else {
+			v.size(p+"/thickness_mm", *f.f.ThicknessMM, maxPartMM)
 		}
 	}
 
 	r := in.Rim
 	v.count("/rim/holes", r.Holes, maxSpokeCount)
-	erdOK := v.size("/rim/erd_mm", r.ERDMM, maxRimMM)
 	bsdOK := v.size("/rim/bsd_mm", r.BSDMM, maxRimMM)
-	if erdOK && bsdOK && r.ERDMM >= r.BSDMM {
+	if bsdOK && r.ERDMM > 0 && r.ERDMM >= r.BSDMM {
 		v.add(unprocessable("/rim/erd_mm", "the effective rim diameter (%g mm) must be smaller than the bead seat diameter (%g mm)", r.ERDMM, r.BSDMM))
 	}
 	v.size("/rim/inner_width_mm", r.InnerWidthMM, maxRimMM)
 	v.size("/rim/hole_diameter_mm", r.HoleDiameterMM, maxPartMM)
 	v.optSize("/rim/max_tension_n", r.MaxTensionN, maxTensionN)
-	if x := r.SpokeHoleOffsetMM; math.IsNaN(x) || math.IsInf(x, 0) || math.Abs(x) > maxPartMM {
-		v.add(invalid("/rim/spoke_hole_offset_mm", "must be a finite offset of at most %g mm either way", maxPartMM))
-	}
 
-	s := in.Spoke
-	switch {
-	case s.DiameterMM == nil && s.Gauge == nil:
-		v.add(invalid("/spoke", "give the spoke's diameter_mm or its BS 3737 gauge"))
-	case s.Gauge != nil:
-		gd, ok := spoke.GaugeDiameterMM(*s.Gauge)
-		if !ok {
-			v.add(invalid("/spoke/gauge", "gauge %d is not a BS 3737 spoke gauge (one of %v)", *s.Gauge, spoke.Gauges()))
-		} else if s.DiameterMM != nil && v.size("/spoke/diameter_mm", *s.DiameterMM, maxPartMM) &&
-			math.Abs(*s.DiameterMM-gd) > nearestGaugeToleranceMM {
-			v.add(invalid("/spoke/diameter_mm", "%g mm disagrees with gauge %d (%.4f mm, BS 3737)", *s.DiameterMM, *s.Gauge, gd))
+	if _, ps := in.Spoke.Resolve(true); len(ps) > 0 {
+		for _, p := range ps {
+			v.add(&FieldError{Pointer: "/spoke" + p.Pointer, Message: p.Message, Unprocessable: p.Unprocessable})
 		}
-	default:
-		v.size("/spoke/diameter_mm", *s.DiameterMM, maxPartMM)
 	}
-	v.optSize("/spoke/head_diameter_mm", s.HeadDiameterMM, maxPartMM)
-	v.optSize("/spoke/elbow_length_mm", s.ElbowLengthMM, maxPartMM)
-	v.optSize("/spoke/thread_length_mm", s.ThreadLengthMM, maxPartMM)
-	if s.Thread != nil {
-		v.thread("/spoke/thread", *s.Thread)
-	}
-	v.material("/spoke/material", s.Material)
 
 	n := in.Nipple
-	v.thread("/nipple/thread", n.Thread)
+	for _, p := range n.Thread.CheckNippleThread("/nipple/thread") {
+		v.add(&FieldError{Pointer: p.Pointer, Message: p.Message, Unprocessable: p.Unprocessable})
+	}
 	v.size("/nipple/shank_diameter_mm", n.ShankDiameterMM, maxPartMM)
 	v.size("/nipple/head_diameter_mm", n.HeadDiameterMM, maxPartMM)
 	v.size("/nipple/length_mm", n.LengthMM, maxPartMM)
@@ -208,21 +179,6 @@ func Validate(in Input) error {
 		v.size("/tyre/width_mm", t.WidthMM, maxRimMM)
 	}
 	v.optSize("/frame_spacing_mm", in.FrameSpacingMM, maxHubMM)
-
-	for _, c := range []struct {
-		side string
-		n    int
-	}{{"left", in.Crosses.Left}, {"right", in.Crosses.Right}} {
-		p := "/crosses/" + c.side
-		switch {
-		case c.n < 0:
-			v.add(invalid(p, "crosses cannot be negative (0 = radial)"))
-		case spokesOK && 4*c.n >= in.SpokeCount:
-			// crosses × 720°/N must stay below 180°: a spoke cannot reach a rim
-			// hole half the wheel away.
-			v.add(unprocessable(p, "%d crosses cannot be laced with %d spokes (fewer than %d)", c.n, in.SpokeCount, (in.SpokeCount+3)/4))
-		}
-	}
 	v.size("/target_tension_n", in.TargetTensionN, maxTensionN)
 
 	if len(v.errs) == 0 {

@@ -5,6 +5,7 @@ import (
 	"reflect"
 	"strings"
 	"testing"
+	"wheelbench/service/spoke"
 )
 
 // checkOutcome is the contract every input must meet: either a valid,
@@ -30,7 +31,7 @@ func checkOutcome(t *testing.T, w Wheel, res Result, err error) {
 	if _, err := json.Marshal(res); err != nil {
 		t.Fatalf("result does not encode: %v", err)
 	}
-	if res.Left.LengthMM <= 0 || res.Right.LengthMM <= 0 || res.Findings == nil || res.Cautions == nil {
+	if res.Left.LengthMM <= 0 || res.Right.LengthMM <= 0 || len(res.Left.LengthGroups) == 0 || len(res.Right.LengthGroups) == 0 {
 		t.Fatalf("implausible result %+v", res)
 	}
 }
@@ -48,7 +49,7 @@ func FuzzCompute(f *testing.F) {
 			},
 			Rim:            Rim{ERDMM: erd, SpokeHoleOffsetMM: offset, StaggerMM: Sides{stagL, stagR}, NippleWasherMM: washer},
 			Crosses:        Cross{Left: &kL, Right: &kR},
-			Spoke:          &Spoke{DiameterMM: &d, Sections: []Section{{LengthMM: 40, DiameterMM: d * 1.1}}},
+			Spoke:          &spoke.Spec{DiameterMM: &d, Sections: []spoke.Butt{{LengthMM: 40, DiameterMM: fp(d * 1.1)}}},
 			TargetTensionN: &tension,
 			Stock:          &Stock{IncrementMM: &inc},
 		}

@@ -5,6 +5,7 @@ import (
 	"math"
 	"reflect"
 	"testing"
+	"wheelbench/service/spoke"
 )
 
 func ip(v int) *int               { return &v }
@@ -22,7 +23,7 @@ func contractWheel() Wheel {
 			Right: Flange{PCDMM: 45, CenterToFlangeMM: 18.5, HoleDiameterMM: fp(2.6)}},
 		Rim:            Rim{ERDMM: 599},
 		Crosses:        cross(3, 3),
-		Spoke:          &Spoke{DiameterMM: fp(2.0), Material: "stainless_steel"},
+		Spoke:          &spoke.Spec{DiameterMM: fp(2.0), Material: "stainless_steel"},
 		TargetTensionN: fp(1100),
 		Stock:          &Stock{IncrementMM: fp(2)},
 	}
@@ -86,13 +87,4 @@ func allFinite(v reflect.Value) bool {
 		}
 	}
 	return true
-}
-
-func hasCode(r Result, code, side string) bool {
-	for _, f := range r.Findings {
-		if f.Code == code && f.Side == side {
-			return true
-		}
-	}
-	return false
 }

@@ -1,48 +1,98 @@
 package geometry
 
-// Result is the response of POST /v1/spoke-lengths for one wheel.
+import "wheelbench/service/spoke"
+
+// Result is one wheel's geometry: what POST /v1/spoke-lengths answers
+// beside the rule set's findings and cautions.
 type Result struct {
 	Left  SideResult `json:"left"`
 	Right SideResult `json:"right"`
-	// TensionRatioLeftToRight is T_left / T_right from lateral balance,
-	// T_L·sin β_L = T_R·sin β_R, with β the angle of the 3-D spoke line to
-	// the wheel plane.
+	// TensionRatioLeftToRight is T_left / T_right from lateral balance over
+	// every spoke, Σ_L T_L·sin β = Σ_R T_R·sin β (n_L·T_L·sin β_L =
+	// n_R·T_R·sin β_R when each side has one length), with β the angle of
+	// the 3-D spoke line to the wheel plane.
 	TensionRatioLeftToRight float64 `json:"tension_ratio_left_to_right"`
-	// Findings are never nil (an empty list encodes as []).
-	Findings []Finding `json:"findings"`
-	// Cautions are plain sentences about results that can hurt a rider when
-	// wrong; never nil.
-	Cautions []string `json:"cautions"`
+	// Lacing is the plan, one entry per spoke in spoke order, when asked
+	// for (Wheel.IncludeLacing).
+	Lacing []LacingSpoke `json:"lacing,omitempty"`
+	// KeySpoke is the spoke laced first, when the plan is given.
+	KeySpoke int `json:"key_spoke,omitempty"`
+	// Facts are what the rule set needs beyond the answer.
+	Facts Facts `json:"-"`
 }
 
 // SideResult is one side's spokes. Optional values are nil when their inputs
-// are missing.
+// are missing. With uneven lacing a side has several lengths
+// (LengthGroups); the side's single figures are those of its longest
+// group.
 type SideResult struct {
 	// LengthMM is the loaded geometric length to the effective ERD: the 3-D
-	// hub hole ↔ rim hole distance, less half the flange hole for J-bend.
+	// hub hole ↔ rim hole distance, less half the flange hole for J-bend
+	// (less the exit offset for seated spokes). The longest group's.
 	LengthMM float64 `json:"length_mm"`
 	// OrderLengthMM is the unloaded length that stretches to LengthMM at
-	// TensionN (needs the spoke size and a target tension).
+	// TensionN (needs the spoke and a target tension).
 	OrderLengthMM *float64 `json:"order_length_mm,omitempty"`
 	// StockLengthMM is the available length nearest OrderLengthMM (or
 	// LengthMM when the stretch is unknown).
 	StockLengthMM *float64 `json:"stock_length_mm,omitempty"`
 	// SpokeEndMM is where the stock spoke ends along its axis relative to
-	// the ERD level at TensionN: positive past it (too long), negative short.
+	// the ERD level (the nipple head) at TensionN: positive past it.
 	SpokeEndMM *float64 `json:"spoke_end_mm,omitempty"`
 	// BracingAngleDeg is the angle between the spoke and the wheel plane.
 	BracingAngleDeg float64 `json:"bracing_angle_deg"`
 	// NippleAngleDeg is the spoke's angle to the rim radius at the nipple.
 	NippleAngleDeg NippleAngle `json:"nipple_angle_deg"`
 	// HubAngleDeg is the in-plane angle, seen from the axle, between the hub
-	// hole and the rim hole: crosses × 720° / spoke_count.
+	// hole and the rim hole: crosses × 360° / spokes on the flange for an
+	// evenly laced J-bend side.
 	HubAngleDeg float64 `json:"hub_angle_deg"`
 	// MaxCrosses is the largest cross count this side's geometry can take
-	// before the spoke would leave the flange past the tangent (0 when the
-	// spoke count allows radial lacing only).
+	// before a J-bend spoke would leave the flange past the tangent (0 when
+	// the flange's spoke count allows radial lacing only).
 	MaxCrosses int `json:"max_crosses"`
 	// TensionN is this side's tension when a target is given.
 	TensionN *float64 `json:"tension_n,omitempty"`
+	// Spokes is how many spokes the side's flange carries.
+	Spokes int `json:"spokes"`
+	// Exit is the model the length was computed with: j_bend, tangential
+	// or angled (ExitAngleDeg then gives the angle).
+	Exit         string   `json:"exit"`
+	ExitAngleDeg *float64 `json:"exit_angle_deg,omitempty"`
+	// MaxCrossesClearOfHeads is the most crosses at which a J-bend spoke
+	// passes clear of its neighbour's head (MaxCrosses for seated spokes).
+	MaxCrossesClearOfHeads int `json:"max_crosses_clear_of_heads"`
+	// LengthGroups are the side's distinct lengths, longest first.
+	LengthGroups []LengthGroup `json:"length_groups"`
+}
+
+// LengthGroup is one length of a side and how many spokes take it.
+type LengthGroup struct {
+	LengthMM      float64  `json:"length_mm"`
+	Count         int      `json:"count"`
+	OrderLengthMM *float64 `json:"order_length_mm,omitempty"`
+	StockLengthMM *float64 `json:"stock_length_mm,omitempty"`
+	SpokeEndMM    *float64 `json:"spoke_end_mm,omitempty"`
+}
+
+// LacingSpoke is one spoke of the plan.
+type LacingSpoke struct {
+	// Spoke is its number: 1 is the first rim hole clockwise of the valve
+	// as seen from the right.
+	Spoke int `json:"spoke"`
+	// Side is left or right.
+	Side string `json:"side"`
+	// RimHoleDeg and HubHoleDeg are the holes' angles in the wheel plane,
+	// clockwise from the valve as seen from the right. For a seated spoke
+	// HubHoleDeg is where it leaves the hole circle.
+	RimHoleDeg float64 `json:"rim_hole_deg"`
+	HubHoleDeg float64 `json:"hub_hole_deg"`
+	// Head is in (on the flange's inner face) or out.
+	Head string `json:"head"`
+	// Direction is leading, trailing or radial.
+	Direction string  `json:"direction"`
+	Crosses   int     `json:"crosses"`
+	LengthMM  float64 `json:"length_mm"`
 }
 
 // NippleAngle splits the angle between the spoke and the rim radius at the
@@ -57,56 +107,47 @@ type NippleAngle struct {
 	Total float64 `json:"total"`
 }
 
-// Finding is one observation about the wheel. Codes are listed below.
-type Finding struct {
-	Code string `json:"code"`
-	// Severity is "error", "warning" or "info".
-	Severity string `json:"severity"`
-	Message  string `json:"message"`
-	// Side is "left" or "right" when the finding concerns one side.
-	Side string `json:"side,omitempty"`
+// Facts are the resolved inputs and worst cases the rule set judges.
+type Facts struct {
+	// Kind and Brake are the hub's, defaults applied (bicycle, none).
+	Kind, Brake string
+	Driven      bool
+	// Sides: 0 is left, 1 is right.
+	Sides [2]SideFacts
+	// HasSpoke: the spoke was described; Spoke is it, resolved.
+	HasSpoke bool
+	Spoke    spoke.Resolved
+	// HeadMM is the J-bend head diameter used (HeadAssumed when estimated).
+	HeadMM      float64
+	HeadAssumed bool
+	// TargetN is the target tension, 0 when none.
+	TargetN float64
+	// RatioIfRimTurned is T_left/T_right with the rim turned round (its
+	// offset and stagger mirrored); 0 when the rim has neither.
+	RatioIfRimTurned float64
+	// Stock is what stock lengths were chosen from (nil: none).
+	Stock *Stock
 }
 
-// Severities.
-const (
-	SeverityError   = "error"
-	SeverityWarning = "warning"
-	SeverityInfo    = "info"
-)
-
-// Finding codes.
-const (
-	// CodeHoleDiameterAssumed (info): no flange hole diameter was given;
-	// Options.DefaultHoleDiameterMM was used for the J-bend correction.
-	CodeHoleDiameterAssumed = "hole_diameter_assumed"
-	// CodeHoleLoose (info): the flange hole is much larger than the spoke.
-	CodeHoleLoose = "hole_loose"
-	// CodeHeadOverlap (warning): the spoke runs over the head of the
-	// neighbouring spoke on the same flange.
-	CodeHeadOverlap = "head_overlap"
-	// CodeLowBracingAngle (warning): the side's bracing angle is very low.
-	CodeLowBracingAngle = "low_bracing_angle"
-	// CodeTensionRatioHigh (warning): one side needs far more tension than
-	// the other.
-	CodeTensionRatioHigh = "tension_ratio_high"
-	// CodeLowSideTension (warning): at the target, the low side's tension is
-	// below Options.MinLowSideTensionN.
-	CodeLowSideTension = "low_side_tension"
-	// CodeNippleAngleHigh (warning): the spoke meets the nipple at a steep
-	// angle to the rim radius.
-	CodeNippleAngleHigh = "nipple_angle_high"
-	// CodeSpokeStressHigh (warning): the stress in the thinnest section
-	// exceeds Options.MaxStressFraction of the material's UTS.
-	CodeSpokeStressHigh = "spoke_stress_high"
-	// CodeRadialDiscSide (warning): the rotor side is laced radially.
-	CodeRadialDiscSide = "radial_disc_side"
-	// CodeRadialDriveSide (warning): a side that carries drive torque is
-	// laced radially.
-	CodeRadialDriveSide = "radial_drive_side"
-	// CodeStockEndLong (warning): the stock spoke ends past the ERD level by
-	// more than Options.StockEndLongMM.
-	CodeStockEndLong = "stock_end_long"
-	// CodeStockEndShort (warning): the stock spoke ends short of the ERD
-	// level by more than Options.StockEndShortMM.
-	CodeStockEndShort = "stock_end_short"
-)
+// SideFacts are one side's resolved inputs and worst cases.
+type SideFacts struct {
+	Exit    string
+	Crosses int
+	Spokes  int
+	// HoleMM is the J-bend hole used, HoleAssumed when the default.
+	HoleMM      float64
+	HoleAssumed bool
+	ThicknessMM float64 // 0 when not given
+	// PassesHeads: the side's spokes run past their neighbours' heads
+	// (crossed J-bend); HeadGapMM is then the smallest gap between a spoke
+	// and a neighbour's head centre, ClearMM the gap it needs.
+	PassesHeads        bool
+	HeadGapMM, ClearMM float64
+	// NippleMaxDeg is the largest total nipple angle, BracingMinDeg the
+	// smallest bracing angle, of the side's spokes.
+	NippleMaxDeg, BracingMinDeg float64
+	// SeatAngleDeg is, for seated spokes, the in-plane angle at which the
+	// seat sends them to the rim; PatternAngleDeg the angle the crosses
+	// give (crosses × 360° / spokes on the flange).
+	SeatAngleDeg, PatternAngleDeg float64
+}

@@ -29,7 +29,7 @@ func TestHookeWorkedExample(t *testing.T) {
 	if e != 193 {
 		t.Fatalf("materials.tsv gives E = %v GPa for stainless steel, the worked example assumes 193", e)
 	}
-	w := newWire(1000, e*1000, 2.0, nil)
+	w := newWire(1000, e*1000, round(2.0), nil, nil)
 	if got := w.stretchMM(300); !near(got, 0.494782206503, 1e-12) {
 		t.Errorf("stretch %.12f mm, Hooke's law gives 0.494782206503", got)
 	}
@@ -49,12 +49,48 @@ func TestHookeButted(t *testing.T) {
 	const tension = 900.0
 	area := func(d float64) float64 { return math.Pi * d * d / 4 }
 	want := tension * (40/(e*area(2.0)) + 30/(e*area(2.0)) + 230/(e*area(1.8)))
-	w := newWire(tension, e, 1.8, []Section{{LengthMM: 40, DiameterMM: 2.0}, {LengthMM: 30, DiameterMM: 2.0}})
+	w := newWire(tension, e, round(1.8), []spoke.Section{round(2.0), round(2.0)}, []float64{40, 30})
 	if got := w.stretchMM(300); !near(got, want, 1e-12) {
 		t.Errorf("butted stretch %.12f mm, series Hooke %.12f", got, want)
 	}
-	if w.minArea != area(1.8) {
-		t.Errorf("thinnest section %v mm², want %v", w.minArea, area(1.8))
+}
+
+// TestHookeBladed: a bladed spoke's body is an ellipse of full width w and
+// thickness t, area π·(w/2)·(t/2) (handbook area of an ellipse); its round
+// ends are sections. 2.3 × 0.9 mm blade, two 12 mm round ends of 2.0 mm,
+// 280 mm unloaded, stainless 193 GPa (materials.tsv), 1100 N:
+//
+//	A_blade = π·1.15·0.45 = 1.625774198… mm², A_end = π mm²
+//	ΔL = 1100/193000 · (256/1.625774198 + 24/π) = 0.941000862… mm
+//	(the digits from a 30-digit decimal evaluation of the same sum)
+//
+// and the spoke computed with it orders that much less than its length.
+func TestHookeBladed(t *testing.T) {
+	e := referenceModuli(t)["stainless_steel"] * 1000
+	aBlade := math.Pi * (2.3 / 2) * (0.9 / 2)
+	want := 1100 / e * (256/aBlade + 24/math.Pi)
+	if !near(want, 0.941000862, 1e-9) {
+		t.Fatalf("hand figure %.9f, derived 0.941000862", want)
+	}
+	blade := spoke.Section{Profile: spoke.Bladed, WidthMM: 2.3, ThicknessMM: 0.9}
+	w := newWire(1100, e, blade, []spoke.Section{round(2.0)}, []float64{24})
+	if got := w.stretchMM(280); !near(got, want, 1e-12) {
+		t.Errorf("bladed stretch %.12f mm, series Hooke %.12f", got, want)
+	}
+	wh := contractWheel()
+	wh.TargetTensionN = fp(1100)
+	wh.Spoke = &spoke.Spec{Profile: spoke.Bladed, WidthMM: fp(2.3), ThicknessMM: fp(0.9), DiameterMM: fp(2.0),
+		Sections: []spoke.Butt{{LengthMM: 24, DiameterMM: fp(2.0)}}}
+	res, err := Compute(wh)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, s := range []SideResult{res.Left, res.Right} {
+		l0, tn := *s.OrderLengthMM, *s.TensionN
+		stretch := tn / e * ((l0-24)/aBlade + 24/math.Pi)
+		if !near(l0+stretch, s.LengthMM, 1e-9) {
+			t.Errorf("bladed: order %.9f + stretch %.9f ≠ length %.9f", l0, stretch, s.LengthMM)
+		}
 	}
 }
 
@@ -66,9 +102,9 @@ func TestOrderLengthIsHookeInverse(t *testing.T) {
 		if m, _ := spoke.LookupMaterial(name); m.EGPa != eGPa {
 			t.Errorf("%s: package E %v GPa, reference %v", name, m.EGPa, eGPa)
 		}
-		for _, sections := range [][]Section{nil, {{LengthMM: 50, DiameterMM: 2.0}, {LengthMM: 12, DiameterMM: 2.3}}} {
+		for _, sections := range [][]spoke.Butt{nil, {{LengthMM: 50, DiameterMM: fp(2.0)}, {LengthMM: 12, DiameterMM: fp(2.3)}}} {
 			w := contractWheel()
-			w.Spoke = &Spoke{DiameterMM: fp(1.8), Material: name, Sections: sections}
+			w.Spoke = &spoke.Spec{DiameterMM: fp(1.8), Material: name, Sections: sections}
 			if name == "aluminium" {
 				w.TargetTensionN = fp(900)
 			}
@@ -83,7 +119,7 @@ func TestOrderLengthIsHookeInverse(t *testing.T) {
 				rest := l0
 				stretch := 0.0
 				for _, sec := range sections {
-					stretch += tension * sec.LengthMM / (e * a(sec.DiameterMM))
+					stretch += tension * sec.LengthMM / (e * a(*sec.DiameterMM))
 					rest -= sec.LengthMM
 				}
 				stretch += tension * rest / (e * a(1.8))

@@ -7,21 +7,27 @@ import (
 	"wheelbench/service/spoke"
 )
 
-// Wheel is one request of POST /v1/spoke-lengths. Required: SpokeCount, both
-// flanges' PCDMM and CenterToFlangeMM, Rim.ERDMM and both Crosses. Optional
-// numbers are pointers (absent = nil; an explicit 0 is rejected where zero is
-// not a valid size) or have a zero value that means "none".
+// Wheel is one request of POST /v1/spoke-lengths, and the geometric part
+// of every other description of a wheel (compatibility checks and builds
+// use the same Hub, Rim, Cross and spoke). Required: SpokeCount, both
+// flanges' PCDMM and CenterToFlangeMM, Rim.ERDMM and both Crosses.
+// Optional numbers are pointers (absent = nil) or have a zero value that
+// means "none".
 type Wheel struct {
 	SpokeCount int   `json:"spoke_count"`
 	Hub        Hub   `json:"hub"`
 	Rim        Rim   `json:"rim"`
 	Crosses    Cross `json:"crosses"`
-	// Spoke describes the spoke wire; needed for order lengths and stress.
-	Spoke *Spoke `json:"spoke,omitempty"`
-	// TargetTensionN is the tension of the higher-tension side, in newtons.
+	// Spoke describes the spoke; needed for order lengths and stress.
+	Spoke *spoke.Spec `json:"spoke,omitempty"`
+	// TargetTensionN is the tighter side's tension, in newtons.
 	TargetTensionN *float64 `json:"target_tension_n,omitempty"`
-	// Stock says which lengths can be bought; a stock length is chosen per side.
+	// Stock says which lengths can be had; a stock length is chosen per
+	// length group.
 	Stock *Stock `json:"stock,omitempty"`
+	// IncludeLacing asks for the lacing plan (one entry per spoke) in the
+	// answer; it is always computed for uneven lacing.
+	IncludeLacing bool `json:"include_lacing,omitempty"`
 }
 
 // Hub types.
@@ -30,21 +36,67 @@ const (
 	StraightPull = "straight_pull"
 )
 
-// Hub is the hub shell: its spoke type and its two flanges.
+// Flange exits: how a flange's spokes leave it.
+const (
+	// ExitJBend: through a drilled hole, the elbow's inside bearing on the
+	// hole's edge; the length is less half the hole.
+	ExitJBend = "j_bend"
+	// ExitTangential: from a seat that points the spoke along the tangent
+	// to the hole circle; in-plane length √(R² − r²) whatever the crosses.
+	ExitTangential = "tangential"
+	// ExitAngled: from a seat at ExitAngleDeg to the radius (0 = radial,
+	// 90 = tangential).
+	ExitAngled = "angled"
+)
+
+// Hub kinds: what sort of hub is laced. They decide load and cautions.
+const (
+	KindBicycle      = "bicycle"
+	KindMotor        = "motor"
+	KindMotorVehicle = "motor_vehicle"
+	KindTandem       = "tandem"
+	KindCargo        = "cargo"
+)
+
+// HubKinds lists the accepted kinds.
+var HubKinds = []string{KindBicycle, KindMotor, KindMotorVehicle, KindTandem, KindCargo}
+
+// Brakes: what brakes the wheel, which decides where braking torque goes.
+const (
+	BrakeNone    = "none"
+	BrakeRim     = "rim"
+	BrakeRotor   = "rotor"
+	BrakeDrum    = "drum"
+	BrakeCoaster = "coaster"
+)
+
+// Brakes lists the accepted brakes.
+var Brakes = []string{BrakeNone, BrakeRim, BrakeRotor, BrakeDrum, BrakeCoaster}
+
+// Hub is the hub, described the same way everywhere.
 type Hub struct {
-	// Type is "j_bend" (the default when empty) or "straight_pull".
-	Type  string `json:"type,omitempty"`
-	Left  Flange `json:"left"`
-	Right Flange `json:"right"`
-	// DiscBrake says a rotor is mounted (on the left): brake torque goes
-	// through the left flange's spokes.
-	DiscBrake bool `json:"disc_brake,omitempty"`
-	// Driven says the hub is driven from the right (a rear wheel): pedalling
-	// torque goes through the right flange's spokes.
+	// Holes is the number of spoke holes in both flanges together; the fit
+	// rules compare it with the spoke count and the rim.
+	Holes int `json:"holes,omitempty"`
+	// Kind is bicycle (default), motor, motor_vehicle, tandem or cargo.
+	Kind string `json:"kind,omitempty"`
+	// Type is j_bend (default) or straight_pull.
+	Type string `json:"type,omitempty"`
+	// Brake is none (default), rim, rotor, drum or coaster. A rotor or a
+	// drum sits on the left; a coaster brake reacts through the whole
+	// shell.
+	Brake string `json:"brake,omitempty"`
+	// Driven says the hub is driven from the right (a rear wheel):
+	// pedalling torque goes through the right flange's spokes.
 	Driven bool `json:"driven,omitempty"`
-	// Motor says the hub contains a motor: drive and regenerative torque go
-	// through both flanges.
-	Motor bool `json:"motor,omitempty"`
+	// SpacingMM is the over-locknut width; compared with the frame's.
+	SpacingMM *float64 `json:"spacing_mm,omitempty"`
+	Left      Flange   `json:"left"`
+	Right     Flange   `json:"right"`
+	// DiscBrake is the older way to say brake "rotor"; Motor the older way
+	// to say kind "motor". Both are still accepted.
+	DiscBrake bool `json:"disc_brake,omitempty"`
+	Motor     bool `json:"motor,omitempty"`
 }
 
 // Flange is one hub flange.
@@ -55,22 +107,33 @@ type Flange struct {
 	// the flange's mid-plane, positive outward on both sides.
 	CenterToFlangeMM float64 `json:"center_to_flange_mm"`
 	// HoleDiameterMM is the spoke-hole diameter (J-bend). Absent: the
-	// Options default is assumed and an info finding says so.
+	// Options default is assumed and a finding says so.
 	HoleDiameterMM *float64 `json:"hole_diameter_mm,omitempty"`
-	// ThicknessMM is the flange thickness; validated only: the hole's centre
-	// plane is the spoke's pivot, so the length does not depend on it.
+	// ThicknessMM is the flange thickness at the holes (the fit rules'
+	// elbow checks).
 	ThicknessMM *float64 `json:"thickness_mm,omitempty"`
-	// SpokeExitOffsetMM (straight-pull only) is the signed distance along
-	// the spoke from the PCD point to where the spoke leaves its head seat;
-	// positive toward the rim (the spoke is that much shorter), negative when
-	// the spoke leaves behind the PCD point (that much longer).
+	// Spokes is how many spokes this flange carries; default half the
+	// wheel. Give both (or one) for uneven lacing such as 2:1.
+	Spokes *int `json:"spokes,omitempty"`
+	// Exit is how the spokes leave: j_bend, tangential or angled (with
+	// ExitAngleDeg). Default: j_bend on a J-bend hub; on a straight-pull
+	// hub tangential for a crossed side, radial (angled 0°) for a radial
+	// one.
+	Exit         string   `json:"exit,omitempty"`
+	ExitAngleDeg *float64 `json:"exit_angle_deg,omitempty"`
+	// SpokeExitOffsetMM (straight-pull) is the signed distance along the
+	// spoke from the seat point on the hole circle to where the spoke
+	// leaves its head seat; positive toward the rim (the spoke is that much
+	// shorter), negative when it leaves behind that point (longer).
 	SpokeExitOffsetMM *float64 `json:"spoke_exit_offset_mm,omitempty"`
 }
 
-// Rim is the rim as the spokes see it.
+// Rim is the rim, described the same way everywhere.
 type Rim struct {
+	// Holes is the rim's spoke-hole count; the fit rules compare it.
+	Holes int `json:"holes,omitempty"`
 	// ERDMM is the effective rim diameter: the diameter at which the spoke
-	// ends sit when the nipples are seated.
+	// ends sit flush with the heads of seated nipples.
 	ERDMM float64 `json:"erd_mm"`
 	// SpokeHoleOffsetMM is the axial offset of the rim's spoke-hole line from
 	// the rim's centre plane, positive toward the left flange.
@@ -79,10 +142,20 @@ type Rim struct {
 	// spokes use from the spoke-hole line, positive toward that side's own
 	// flange (zero for a single row of holes).
 	StaggerMM Sides `json:"stagger_mm,omitzero"`
-	// NippleWasherMM is the thickness of a washer under each nipple head. It
-	// lifts the nipple seat toward the hub: the effective ERD shrinks by twice
-	// the thickness. Zero: no washers.
+	// NippleWasherMM is the thickness of a washer under each nipple head.
+	// It lifts the head away from the hub, so the spoke must reach that
+	// much farther: the effective ERD grows by twice the thickness.
 	NippleWasherMM float64 `json:"nipple_washer_mm,omitempty"`
+	// BSDMM is the ISO 5775 bead seat diameter.
+	BSDMM float64 `json:"bsd_mm,omitempty"`
+	// InnerWidthMM is the width between the bead hooks or walls.
+	InnerWidthMM float64 `json:"inner_width_mm,omitempty"`
+	// HoleDiameterMM is the diameter of the spoke (nipple) holes.
+	HoleDiameterMM float64 `json:"hole_diameter_mm,omitempty"`
+	// MaxTensionN is the rim maker's maximum spoke tension.
+	MaxTensionN *float64 `json:"max_tension_n,omitempty"`
+	// Eyelets: the holes carry eyelets or sockets (never drilled).
+	Eyelets bool `json:"eyelets,omitempty"`
 }
 
 // Sides is a pair of per-side lengths in mm.
@@ -91,37 +164,14 @@ type Sides struct {
 	Right float64 `json:"right"`
 }
 
-// Cross is the number of crossings per spoke on each side; 0 is radial. Both
-// are required.
+// Cross is the number of crossings per spoke on each side; 0 is radial.
+// Both are required.
 type Cross struct {
 	Left  *int `json:"left"`
 	Right *int `json:"right"`
 }
 
-// Spoke is the spoke wire. Give the nominal size as DiameterMM or as a
-// BS 3737 Gauge, not both.
-type Spoke struct {
-	DiameterMM *float64 `json:"diameter_mm,omitempty"`
-	Gauge      *int     `json:"gauge,omitempty"`
-	// Material is a service/spoke material name; default "stainless_steel".
-	Material string `json:"material,omitempty"`
-	// EGPa overrides the material's Young's modulus.
-	EGPa *float64 `json:"e_gpa,omitempty"`
-	// Sections are butted lengths at other diameters (unloaded, as made);
-	// the rest of the spoke is at the nominal diameter.
-	Sections []Section `json:"sections,omitempty"`
-	// HeadDiameterMM is the J-bend head's diameter, for the head-overlap
-	// check; absent: Options.HeadToSpokeRatio × the nominal diameter.
-	HeadDiameterMM *float64 `json:"head_diameter_mm,omitempty"`
-}
-
-// Section is one butted stretch of a spoke.
-type Section struct {
-	LengthMM   float64 `json:"length_mm"`
-	DiameterMM float64 `json:"diameter_mm"`
-}
-
-// Stock is what the shop can buy: every multiple of IncrementMM, or the
+// Stock is what the shop can get: every multiple of IncrementMM, or the
 // listed LengthsMM. Give one of the two.
 type Stock struct {
 	IncrementMM *float64  `json:"increment_mm,omitempty"`
@@ -134,11 +184,9 @@ const (
 	maxSizeMM      = 5000  // a 5 m wheel is no bicycle wheel
 	maxSpokes      = 144   // three times a tandem's 48
 	maxTensionN    = 20000 // ten times the strongest spoke's usual target
-	maxEGPa        = 1000  // stiffer than any metal
-	maxSections    = 8     // butting rarely has more than three
 	maxStockList   = 1000  // a shop's whole catalogue of lengths
 	maxCrossesIn   = 1 << 20
-	minIncrementMM = 0.1 // no shop stocks spokes finer than this // beyond this a crosses value is garbage, not a wheel
+	minIncrementMM = 0.1 // no shop stocks spokes finer than this
 )
 
 // side is one side's validated, resolved geometry.
@@ -146,24 +194,29 @@ type side struct {
 	r, z    float64 // flange hole circle radius; flange plane z (signed)
 	zRim    float64 // z of this side's rim holes
 	hole    float64 // hole diameter used for the J-bend correction
-	exit    float64 // straight-pull exit offset
+	exit    string  // ExitJBend, ExitTangential or ExitAngled
+	angle   float64 // exit angle to the radius, radians (ExitAngled)
+	offset  float64 // straight-pull exit offset along the spoke
 	crosses int
+	n       int // spokes on this flange
 	// assumedHole is set when the hole diameter was not given.
 	assumedHole bool
 	thickness   float64 // 0 when not given
+	// clear is the head gap a crossed J-bend spoke needs to pass its
+	// neighbour's head: half the head plus half the spoke.
+	clear float64
 }
 
 // resolved is a validated wheel with defaults applied.
 type resolved struct {
 	n           int
-	straight    bool
-	rimR        float64 // effective rim radius (ERD/2 − washer)
+	rimR        float64 // effective rim radius: ERD/2 + washer
 	left, right side
+	even        bool // both flanges carry half the spokes
+	kind, brake string
+	driven      bool
 	hasSpoke    bool
-	d           float64 // nominal diameter, mm
-	eNmm2       float64 // Young's modulus, N/mm²
-	utsMPa      float64
-	sections    []Section
+	sp          spoke.Resolved
 	headD       float64
 	target      float64 // 0: none
 	stock       *Stock
@@ -193,7 +246,7 @@ func (l *errList) signed(prefix, leaf string, v float64) bool {
 	return true
 }
 
-func (l *errList) flange(p string, f Flange, straight bool, def float64, s *side) {
+func (l *errList) flange(p string, f Flange, hubType string, def float64, s *side) {
 	okR := l.size(p, "/pcd_mm", f.PCDMM)
 	okZ := l.size(p, "/center_to_flange_mm", f.CenterToFlangeMM)
 	if okR {
@@ -202,6 +255,39 @@ func (l *errList) flange(p string, f Flange, straight bool, def float64, s *side
 	if okZ {
 		s.z = f.CenterToFlangeMM
 	}
+	switch f.Exit {
+	case "":
+		s.exit = "" // decided once the crosses are known
+		if hubType == JBend {
+			s.exit = ExitJBend
+		}
+	case ExitJBend:
+		if hubType == StraightPull {
+			l.bad(at(p, "/exit"), "a straight_pull hub's spokes leave tangential or angled, not j_bend")
+		}
+		s.exit = ExitJBend
+	case ExitTangential, ExitAngled:
+		if hubType == JBend {
+			l.bad(at(p, "/exit"), "a j_bend hub's spokes leave through holes (exit j_bend): set hub.type straight_pull for seated spokes")
+		}
+		s.exit = f.Exit
+	default:
+		l.bad(at(p, "/exit"), `must be "j_bend", "tangential" or "angled"`)
+	}
+	if f.ExitAngleDeg != nil {
+		a := *f.ExitAngleDeg
+		switch {
+		case f.Exit != ExitAngled:
+			l.bad(at(p, "/exit_angle_deg"), `applies with exit "angled" only`)
+		case !finite(a) || a < 0 || a > 90:
+			l.bad(at(p, "/exit_angle_deg"), "must be an angle from 0° (radial) to 90° (tangential)")
+		default:
+			s.angle = a / deg
+		}
+	} else if f.Exit == ExitAngled {
+		l.bad(at(p, "/exit_angle_deg"), `is required with exit "angled"`)
+	}
+	straight := s.exit == ExitTangential || s.exit == ExitAngled || (s.exit == "" && hubType == StraightPull)
 	s.hole = def
 	s.assumedHole = !straight
 	if f.HoleDiameterMM != nil {
@@ -215,9 +301,19 @@ func (l *errList) flange(p string, f Flange, straight bool, def float64, s *side
 	}
 	if f.SpokeExitOffsetMM != nil {
 		if !straight {
-			l.bad(at(p, "/spoke_exit_offset_mm"), "applies to straight_pull hubs only")
+			l.bad(at(p, "/spoke_exit_offset_mm"), "applies to straight-pull (seated) spokes only")
 		} else if l.signed(p, "/spoke_exit_offset_mm", *f.SpokeExitOffsetMM) {
-			s.exit = *f.SpokeExitOffsetMM
+			s.offset = *f.SpokeExitOffsetMM
+		}
+	}
+	if f.Spokes != nil {
+		switch n := *f.Spokes; {
+		case n < 1:
+			l.bad(at(p, "/spokes"), "must be at least 1")
+		case n > maxSpokes:
+			l.bad(at(p, "/spokes"), "must be at most "+strconv.Itoa(maxSpokes))
+		default:
+			s.n = n
 		}
 	}
 }
@@ -236,6 +332,20 @@ func (l *errList) crosses(p string, c *int) int {
 	return 0
 }
 
+// hubType is the hub's type with the default applied: j_bend, unless a
+// flange's exit says the spokes are seated.
+func hubType(h Hub) string {
+	if h.Type != "" {
+		return h.Type
+	}
+	for _, e := range []string{h.Left.Exit, h.Right.Exit} {
+		if e == ExitTangential || e == ExitAngled {
+			return StraightPull
+		}
+	}
+	return JBend
+}
+
 // resolve validates w and applies defaults. Every returned error is a
 // *FieldError or an errors.Join of them.
 func resolve(w *Wheel, o *Options) (resolved, error) {
@@ -246,39 +356,86 @@ func resolve(w *Wheel, o *Options) (resolved, error) {
 		l.bad("/spoke_count", "must be at least 4")
 	case w.SpokeCount > maxSpokes:
 		l.bad("/spoke_count", "must be at most "+strconv.Itoa(maxSpokes))
-	case w.SpokeCount%2 != 0:
-		l.impossible("/spoke_count", "must be even: each flange takes half the spokes")
 	default:
 		r.n = w.SpokeCount
 	}
-	switch w.Hub.Type {
-	case "", JBend:
-	case StraightPull:
-		r.straight = true
+	ht := w.Hub.Type
+	switch ht {
+	case "":
+		ht = hubType(w.Hub)
+	case JBend, StraightPull:
 	default:
 		l.bad("/hub/type", `must be "j_bend" or "straight_pull"`)
+		ht = JBend
 	}
-	l.flange("/hub/left", w.Hub.Left, r.straight, o.DefaultHoleDiameterMM, &r.left)
-	l.flange("/hub/right", w.Hub.Right, r.straight, o.DefaultHoleDiameterMM, &r.right)
+	r.kind = w.Hub.Kind
+	switch r.kind {
+	case "":
+		r.kind = KindBicycle
+		if w.Hub.Motor {
+			r.kind = KindMotor
+		}
+	case KindBicycle, KindMotor, KindMotorVehicle, KindTandem, KindCargo:
+		if w.Hub.Motor && r.kind != KindMotor && r.kind != KindMotorVehicle {
+			l.bad("/hub/motor", `contradicts kind "`+r.kind+`": leave motor out, or set kind "motor"`)
+		}
+	default:
+		l.bad("/hub/kind", "must be one of bicycle, motor, motor_vehicle, tandem, cargo")
+	}
+	r.brake = w.Hub.Brake
+	switch r.brake {
+	case "":
+		r.brake = BrakeNone
+		if w.Hub.DiscBrake {
+			r.brake = BrakeRotor
+		}
+	case BrakeNone, BrakeRim, BrakeRotor, BrakeDrum, BrakeCoaster:
+		if w.Hub.DiscBrake && r.brake != BrakeRotor {
+			l.bad("/hub/disc_brake", `contradicts brake "`+r.brake+`": leave disc_brake out, or set brake "rotor"`)
+		}
+	default:
+		l.bad("/hub/brake", "must be one of none, rim, rotor, drum, coaster")
+	}
+	r.driven = w.Hub.Driven
+	l.flange("/hub/left", w.Hub.Left, ht, o.DefaultHoleDiameterMM, &r.left)
+	l.flange("/hub/right", w.Hub.Right, ht, o.DefaultHoleDiameterMM, &r.right)
 	r.right.z = -r.right.z
+
+	// Spokes per flange: default half each; one given, the other the rest.
+	if r.n > 0 {
+		switch nl, nr := r.left.n, r.right.n; {
+		case nl == 0 && nr == 0:
+			if r.n%2 != 0 {
+				l.impossible("/spoke_count", "an odd spoke count needs hub.left.spokes and hub.right.spokes: by default each flange takes half")
+			}
+			r.left.n, r.right.n = r.n/2, r.n-r.n/2
+		case nl == 0:
+			r.left.n = r.n - nr
+		case nr == 0:
+			r.right.n = r.n - nl
+		}
+		oddDefault := r.n%2 != 0 && w.Hub.Left.Spokes == nil && w.Hub.Right.Spokes == nil // reported above
+		if !oddDefault && r.left.n+r.right.n != r.n {
+			l.impossible("/hub/left/spokes", "hub.left.spokes + hub.right.spokes must equal spoke_count ("+strconv.Itoa(r.n)+")")
+		} else if r.left.n < 2 || r.right.n < 2 {
+			l.impossible("/hub/left/spokes", "each flange needs at least 2 spokes")
+		}
+		r.even = r.left.n == r.right.n
+	}
 
 	okERD := l.size("/rim/erd_mm", "", w.Rim.ERDMM)
 	okOff := l.signed("/rim/spoke_hole_offset_mm", "", w.Rim.SpokeHoleOffsetMM)
 	okSL := l.signed("/rim/stagger_mm/left", "", w.Rim.StaggerMM.Left)
 	okSR := l.signed("/rim/stagger_mm/right", "", w.Rim.StaggerMM.Right)
 	washer := w.Rim.NippleWasherMM
-	okW := finite(washer) && washer >= 0 && washer <= maxSizeMM
+	okW := finite(washer) && washer >= 0 && washer <= 50
 	if !okW {
-		l.bad("/rim/nipple_washer_mm", "must be a finite thickness ≥ 0 mm")
+		l.bad("/rim/nipple_washer_mm", "must be a finite thickness from 0 to 50 mm")
 	}
 	if okERD && okW {
-		r.rimR = w.Rim.ERDMM/2 - washer
-		maxPCD := math.Max(w.Hub.Left.PCDMM, w.Hub.Right.PCDMM)
-		switch {
-		case w.Rim.ERDMM <= maxPCD:
+		r.rimR = w.Rim.ERDMM/2 + washer
+		if maxPCD := math.Max(w.Hub.Left.PCDMM, w.Hub.Right.PCDMM); w.Rim.ERDMM <= maxPCD {
 			l.bad("/rim/erd_mm", "must be larger than the flanges' pcd_mm ("+fmtMM(maxPCD)+")")
-		case 2*r.rimR <= maxPCD:
-			l.impossible("/rim/nipple_washer_mm", "washers this thick bring the nipples inside the flange circle")
 		}
 	}
 	if okOff && okSL && okSR {
@@ -293,6 +450,14 @@ func resolve(w *Wheel, o *Options) (resolved, error) {
 	}
 	r.left.crosses = l.crosses("/crosses/left", w.Crosses.Left)
 	r.right.crosses = l.crosses("/crosses/right", w.Crosses.Right)
+	for _, s := range []*side{&r.left, &r.right} {
+		if s.exit == "" { // straight-pull default
+			s.exit = ExitTangential
+			if s.crosses == 0 {
+				s.exit, s.angle = ExitAngled, 0
+			}
+		}
+	}
 
 	l.spoke(w.Spoke, o, &r)
 	if t := w.TargetTensionN; t != nil {
@@ -302,9 +467,14 @@ func resolve(w *Wheel, o *Options) (resolved, error) {
 			r.target = *t
 		}
 	}
-	if !r.straight && r.d > 0 {
-		l.holeFits("/hub/left/hole_diameter_mm", r.left, r.d)
-		l.holeFits("/hub/right/hole_diameter_mm", r.right, r.d)
+	d := r.sp.EndMM
+	if d == 0 {
+		d = o.DefaultSpokeDiameterMM
+	}
+	r.left.clear, r.right.clear = (r.headD+d)/2, (r.headD+d)/2
+	if r.sp.EndMM > 0 {
+		l.holeFits("/hub/left/hole_diameter_mm", r.left, r.sp.EndMM)
+		l.holeFits("/hub/right/hole_diameter_mm", r.right, r.sp.EndMM)
 	}
 	if s := w.Stock; s != nil {
 		l.stock(s)
@@ -315,69 +485,34 @@ func resolve(w *Wheel, o *Options) (resolved, error) {
 
 // holeFits rejects a measured J-bend hole the spoke cannot pass through.
 func (l *errList) holeFits(p string, s side, d float64) {
-	if !s.assumedHole && s.hole < d {
+	if s.exit == ExitJBend && !s.assumedHole && s.hole < d {
 		l.impossible(p, "is smaller than the spoke ("+fmtMM(d)+"): the spoke cannot pass")
 	}
 }
 
-func (l *errList) spoke(sp *Spoke, o *Options, r *resolved) {
+func (l *errList) spoke(sp *spoke.Spec, o *Options, r *resolved) {
 	r.headD = o.HeadToSpokeRatio * o.DefaultSpokeDiameterMM
 	if sp == nil {
 		return
 	}
+	res, ps := sp.Resolve(true)
+	for _, p := range ps {
+		if p.Unprocessable {
+			l.impossible("/spoke"+p.Pointer, p.Message)
+		} else {
+			l.bad("/spoke"+p.Pointer, p.Message)
+		}
+	}
+	if len(ps) > 0 {
+		return
+	}
+	r.sp = res
+	r.hasSpoke = res.EndMM > 0 && res.EGPa > 0
 	switch {
-	case sp.DiameterMM != nil && sp.Gauge != nil:
-		l.bad("/spoke/gauge", "give diameter_mm or gauge, not both")
-	case sp.DiameterMM != nil:
-		if l.size("/spoke/diameter_mm", "", *sp.DiameterMM) {
-			r.d = *sp.DiameterMM
-		}
-	case sp.Gauge != nil:
-		if d, ok := spoke.GaugeDiameterMM(*sp.Gauge); ok {
-			r.d = d
-		} else {
-			l.bad("/spoke/gauge", "is not a BS 3737 gauge spokes come in (8 to 17)")
-		}
-	}
-	name := sp.Material
-	if name == "" {
-		name = "stainless_steel"
-	}
-	m, ok := spoke.LookupMaterial(name)
-	if !ok {
-		l.bad("/spoke/material", "must be one of stainless_steel, titanium, aluminium, brass")
-	}
-	r.eNmm2 = m.EGPa * 1000 // 1 GPa = 1000 N/mm²
-	r.utsMPa = m.UTSMPa
-	if sp.EGPa != nil {
-		if e := *sp.EGPa; !finite(e) || e <= 0 || e > maxEGPa {
-			l.bad("/spoke/e_gpa", "must be a positive, finite modulus of at most "+fmtNum(maxEGPa)+" GPa")
-		} else {
-			r.eNmm2 = e * 1000
-		}
-	}
-	if len(sp.Sections) > maxSections {
-		l.bad("/spoke/sections", "at most "+strconv.Itoa(maxSections)+" butted sections")
-	} else {
-		for i, s := range sp.Sections {
-			if !finite(s.LengthMM) || !finite(s.DiameterMM) || s.LengthMM <= 0 || s.DiameterMM <= 0 || s.LengthMM > maxSizeMM || s.DiameterMM > maxSizeMM {
-				p := "/spoke/sections/" + strconv.Itoa(i)
-				l.size(p, "/length_mm", s.LengthMM)
-				l.size(p, "/diameter_mm", s.DiameterMM)
-			}
-		}
-		r.sections = sp.Sections
-	}
-	if sp.HeadDiameterMM != nil {
-		if l.size("/spoke/head_diameter_mm", "", *sp.HeadDiameterMM) {
-			r.headD = *sp.HeadDiameterMM
-		}
-	} else if r.d > 0 {
-		r.headD = o.HeadToSpokeRatio * r.d
-	}
-	r.hasSpoke = r.d > 0 && r.eNmm2 > 0
-	if len(sp.Sections) > 0 && r.d == 0 {
-		l.bad("/spoke/sections", "butted sections need the nominal diameter_mm or gauge")
+	case sp.HeadDiameterMM != nil:
+		r.headD = *sp.HeadDiameterMM
+	case res.EndMM > 0:
+		r.headD = o.HeadToSpokeRatio * res.EndMM
 	}
 }
 

@@ -5,6 +5,8 @@ import (
 	"fmt"
 	"math"
 	"sort"
+
+	"wheelbench/service/spoke"
 )
 
 // defaultTolerancePct is ±10 % around the aim, common practice.
@@ -12,18 +14,26 @@ const defaultTolerancePct = 10
 
 // AuditRequest is one built wheel's readings to audit. Spoke is the
 // section of every spoke unless SpokeLeft or SpokeRight overrides it for a
-// side. The target tension (N, kgf or lbf; optional) applies to TargetSide
-// (default "right", the drive side); the other side's aim is the target
-// times the geometric left/right ratio when given (divided by it when the
-// target is for the left), else the same target. Without a target each
-// side is audited against its own mean.
+// side.
+//
+// The target tension (N, kgf or lbf; optional) is always the tighter
+// side's, as everywhere in wheelbench. With the geometric left/right ratio
+// ρ = T_left/T_right the tighter side is the left when ρ > 1, the right
+// when ρ < 1 and both when ρ = 1; the other side's aim is the target
+// scaled by the ratio (target·ρ for the left, target/ρ for the right).
+// TargetSide may still be sent: with a ratio it must name the tighter side
+// (naming the slacker one is refused, 422 at /target_side); without a
+// ratio it names the one side the target is for, and the other side is
+// judged against its own mean. With neither, the target applies to both
+// sides and a warning says that a dished wheel needs the ratio. Without a
+// target each side is judged against its own mean.
 type AuditRequest struct {
 	// CalibrationID is resolved by the caller; this package ignores it.
 	CalibrationID    string         `json:"calibration_id,omitempty"`
 	Calibration      *Calibration   `json:"calibration,omitempty"`
-	Spoke            SpokeSpec      `json:"spoke"`
-	SpokeLeft        *SpokeSpec     `json:"spoke_left,omitempty"`
-	SpokeRight       *SpokeSpec     `json:"spoke_right,omitempty"`
+	Spoke            spoke.Spec     `json:"spoke"`
+	SpokeLeft        *spoke.Spec    `json:"spoke_left,omitempty"`
+	SpokeRight       *spoke.Spec    `json:"spoke_right,omitempty"`
 	Readings         []AuditReading `json:"readings"`
 	TargetTensionN   *float64       `json:"target_tension_n,omitempty"`
 	TargetTensionKgf *float64       `json:"target_tension_kgf,omitempty"`
@@ -42,9 +52,11 @@ type AuditReading struct {
 	Reading float64 `json:"reading"`
 }
 
-// AuditResult summarises the wheel per side and per spoke.
+// AuditResult summarises the wheel per side and per spoke. TargetSide is
+// where the target went: "left", "right" or "both" (empty without one).
 type AuditResult struct {
 	TolerancePct            float64        `json:"tolerance_pct"`
+	TargetSide              string         `json:"target_side,omitempty"`
 	Sides                   []SideSummary  `json:"sides"`
 	Spokes                  []SpokeVerdict `json:"spokes"`
 	MeasuredLeftRightRatio  *float64       `json:"measured_left_right_ratio,omitempty"`
@@ -86,8 +98,58 @@ type SpokeVerdict struct {
 	Action        string     `json:"action"`
 }
 
-// Audit code for a left/right ratio that disagrees with the geometry.
-const WarnRatioMismatch = "left_right_ratio_mismatch"
+// Audit warning codes.
+const (
+	// WarnRatioMismatch: the measured left/right ratio disagrees with the
+	// geometric one.
+	WarnRatioMismatch = "left_right_ratio_mismatch"
+	// WarnNoTarget (info): no target; each side is judged on its own mean.
+	WarnNoTarget = "no_target"
+	// WarnNoGeometricRatio: a target without the geometric left/right
+	// ratio, so the slacker side's aim is unknown.
+	WarnNoGeometricRatio = "no_geometric_ratio"
+)
+
+// targetAims decides which side the target is for and each side's aim
+// (AuditRequest's rule): applied is "left", "right" or "both", warn the
+// warning for a target without a ratio. A targetSide that contradicts the
+// ratio is a 422 at /target_side.
+func targetAims(target float64, ratio *float64, targetSide string) (aims map[string]float64, applied string, warn *Warning, err error) {
+	aims = map[string]float64{}
+	if ratio == nil {
+		if targetSide == "" {
+			aims["left"], aims["right"] = target, target
+			return aims, "both", &Warning{WarnNoGeometricRatio, "warning",
+				"no geometric_left_right_ratio: the target applies to both sides. A dished wheel (a rear wheel, a disc front) runs its sides at different tensions; give the ratio so the slacker side is aimed at its own, lower tension"}, nil
+		}
+		other := map[string]string{"left": "right", "right": "left"}[targetSide]
+		aims[targetSide] = target
+		return aims, targetSide, &Warning{WarnNoGeometricRatio, "warning",
+			"no geometric_left_right_ratio: the target applies to the " + targetSide + " side only, and the " + other +
+				" side is judged against its own mean; give the ratio to aim both sides"}, nil
+	}
+	r := *ratio
+	tighter := "both"
+	switch {
+	case r > 1:
+		tighter = "left"
+	case r < 1:
+		tighter = "right"
+	}
+	if targetSide != "" && tighter != "both" && targetSide != tighter {
+		return nil, "", nil, impossible("/target_side", "target_side %s names the slacker side: the target tension is always the tighter side's, and with geometric_left_right_ratio %g (T_left/T_right) the tighter side is the %s; omit target_side or send %s, with the %s side's tension as the target",
+			targetSide, r, tighter, tighter, tighter)
+	}
+	switch tighter {
+	case "left":
+		aims["left"], aims["right"] = target, target/r
+	case "right":
+		aims["left"], aims["right"] = target*r, target
+	default:
+		aims["left"], aims["right"] = target, target
+	}
+	return aims, tighter, nil, nil
+}
 
 // Audit converts every reading with the model and judges the wheel.
 // Errors are *FieldError with pointers into the audit body.
@@ -105,10 +167,7 @@ func (m *Model) Audit(req AuditRequest) (AuditResult, error) {
 		errs = append(errs, badField("/geometric_left_right_ratio", "geometric_left_right_ratio must be positive and at most 10"))
 	}
 	targetSide := req.TargetSide
-	if targetSide == "" {
-		targetSide = "right"
-	}
-	if targetSide != "left" && targetSide != "right" {
+	if targetSide != "" && targetSide != "left" && targetSide != "right" {
 		errs = append(errs, badField("/target_side", "target_side must be left or right"))
 	}
 	var target *float64
@@ -138,7 +197,16 @@ func (m *Model) Audit(req AuditRequest) (AuditResult, error) {
 	if err := errors.Join(errs...); err != nil {
 		return AuditResult{}, err
 	}
-	specs := map[string]SpokeSpec{"left": req.Spoke, "right": req.Spoke}
+	var aims map[string]float64
+	var applied string
+	var aimWarn *Warning
+	if target != nil {
+		var err error
+		if aims, applied, aimWarn, err = targetAims(*target, ratio, targetSide); err != nil {
+			return AuditResult{}, err
+		}
+	}
+	specs := map[string]spoke.Spec{"left": req.Spoke, "right": req.Spoke}
 	atOf := map[string]string{"left": "/spoke", "right": "/spoke"}
 	if req.SpokeLeft != nil {
 		specs["left"], atOf["left"] = *req.SpokeLeft, "/spoke_left"
@@ -147,7 +215,11 @@ func (m *Model) Audit(req AuditRequest) (AuditResult, error) {
 		specs["right"], atOf["right"] = *req.SpokeRight, "/spoke_right"
 	}
 	preps := map[string]*prepared{}
-	out := AuditResult{TolerancePct: tol, GeometricLeftRightRatio: ratio, Warnings: []Warning{}, Cautions: []string{}}
+	out := AuditResult{TolerancePct: tol, TargetSide: applied, GeometricLeftRightRatio: ratio, Warnings: []Warning{}, Cautions: []string{}}
+	if aimWarn != nil {
+		out.Warnings = append(out.Warnings, *aimWarn)
+	}
+	warned := map[Warning]bool{}
 	caution := map[string]bool{}
 	addCaution := func(c string) {
 		if !caution[c] {
@@ -174,12 +246,20 @@ func (m *Model) Audit(req AuditRequest) (AuditResult, error) {
 		seen[key] = true
 		p := preps[rd.Side]
 		if p == nil {
-			pp, err := m.prepare(specs[rd.Side], atOf[rd.Side])
+			pp, err := m.prepareSpoke(specs[rd.Side], atOf[rd.Side])
 			if err != nil {
 				return AuditResult{}, err
 			}
 			p = &pp
 			preps[rd.Side] = p
+			// The section's own warnings (stiffness, a profile the
+			// calibration lacks), once per wheel.
+			for _, w := range p.secWarns {
+				if !warned[w] {
+					warned[w] = true
+					out.Warnings = append(out.Warnings, w)
+				}
+			}
 		}
 		res, err := p.convert(rd.Reading, func() string { return ptr("readings", i, "reading") })
 		if err != nil {
@@ -196,19 +276,8 @@ func (m *Model) Audit(req AuditRequest) (AuditResult, error) {
 	if err := errors.Join(errs...); err != nil {
 		return AuditResult{}, err
 	}
-	aims := map[string]float64{}
-	if target != nil {
-		other := map[string]string{"left": "right", "right": "left"}[targetSide]
-		aims[targetSide], aims[other] = *target, *target
-		if ratio != nil {
-			if targetSide == "right" {
-				aims["left"] = *target * *ratio
-			} else {
-				aims["right"] = *target / *ratio
-			}
-		}
-	} else {
-		out.Warnings = append(out.Warnings, Warning{"no_target", "info", "no target tension: each side is judged against its own mean"})
+	if target == nil {
+		out.Warnings = append(out.Warnings, Warning{WarnNoTarget, "info", "no target tension: each side is judged against its own mean"})
 	}
 	means := map[string]float64{}
 	for _, side := range []string{"left", "right"} {

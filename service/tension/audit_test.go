@@ -2,6 +2,7 @@ package tension
 
 import (
 	"math"
+	"strings"
 	"testing"
 
 	"github.com/google/go-cmp/cmp"
@@ -24,7 +25,7 @@ func TestAudit(t *testing.T) {
 		rds = append(rds, AuditReading{Side: "left", Spoke: 2 * i, Reading: synthReading(t, spec, tn)})
 	}
 	target, geo := 1100.0, 0.6
-	out, err := m.Audit(AuditRequest{Spoke: spec, Readings: rds, TargetTensionN: &target, GeometricLeftRightRatio: &geo})
+	out, err := m.Audit(AuditRequest{Spoke: whole(spec), Readings: rds, TargetTensionN: &target, GeometricLeftRightRatio: &geo})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -69,14 +70,125 @@ func TestAudit(t *testing.T) {
 	}
 	// A geometric ratio of 0.8 disagrees with the measured 0.6 by 25 %.
 	geo = 0.8
-	out, err = m.Audit(AuditRequest{Spoke: spec, Readings: rds, TargetTensionN: &target, GeometricLeftRightRatio: &geo})
+	out, err = m.Audit(AuditRequest{Spoke: whole(spec), Readings: rds, TargetTensionN: &target, GeometricLeftRightRatio: &geo})
 	if err != nil || !hasWarning(out.Warnings, WarnRatioMismatch) {
 		t.Errorf("ratio mismatch not flagged: %v %+v", err, out.Warnings)
 	}
 	// Bad side → 400 at its pointer.
 	rds[3].Side = "front"
-	_, err = m.Audit(AuditRequest{Spoke: spec, Readings: rds})
+	_, err = m.Audit(AuditRequest{Spoke: whole(spec), Readings: rds})
 	if fe := fieldErr(t, err); fe.Pointer != "/readings/3/side" || fe.Unprocessable {
 		t.Errorf("bad side: %+v", fe)
+	}
+}
+
+// discFront is an invented disc front read with the synthetic tool on
+// 2.0 mm spokes: the rotor (left) side is the tighter one, geometric
+// ratio T_left/T_right = 1.213, built to a 1150 N target, so the left
+// spokes carry 1150 N and the right 1150/1.213 = 948.0627 N (by hand:
+// 1.213 × 948 = 1149.924, and 0.076/1.213 = 0.0627).
+func discFront(t *testing.T) []AuditReading {
+	var rds []AuditReading
+	for i := range 8 {
+		rds = append(rds, AuditReading{Side: "left", Spoke: 2 * i, Reading: synthReading(t, steelRound(2.0), 1150)},
+			AuditReading{Side: "right", Spoke: 2*i + 1, Reading: synthReading(t, steelRound(2.0), 1150/1.213)})
+	}
+	return rds
+}
+
+func aimsOf(out AuditResult) map[string]float64 {
+	aims := map[string]float64{}
+	for _, s := range out.Sides {
+		aims[s.Side] = s.AimN
+	}
+	return aims
+}
+
+// TestAuditTargetIsTheTighterSide: the target tension is the tighter
+// side's. On the disc front the target goes to the left; before, it went
+// to target_side's default (right), so the rotor side was aimed at
+// 1150 × 1.213 = 1394.95 N and every left spoke read as 17.6 % slack.
+func TestAuditTargetIsTheTighterSide(t *testing.T) {
+	m := synthModel(t)
+	rds := discFront(t)
+	target, ratio := 1150.0, 1.213
+	out, err := m.Audit(AuditRequest{Spoke: whole(steelRound(2.0)), Readings: rds, TargetTensionN: &target, GeometricLeftRightRatio: &ratio})
+	if err != nil {
+		t.Fatal(err)
+	}
+	aims := aimsOf(out)
+	if out.TargetSide != "left" || aims["left"] != 1150 || math.Abs(aims["right"]-948.0627) > 1e-4 {
+		t.Errorf("target side %q, aims %v; want left 1150, right 948.0627", out.TargetSide, aims)
+	}
+	for _, v := range out.Spokes {
+		if v.Action != "ok" {
+			t.Errorf("%s spoke %d at %.0f N: %s (vs aim %+.1f %%)", v.Side, v.Spoke, v.TensionN, v.Action, v.VsAimPct)
+		}
+	}
+	// target_side naming the tighter side agrees; naming the slacker side
+	// is refused with a 422 at /target_side that states the rule.
+	out2, err := m.Audit(AuditRequest{Spoke: whole(steelRound(2.0)), Readings: rds, TargetTensionN: &target, GeometricLeftRightRatio: &ratio, TargetSide: "left"})
+	if err != nil || !cmp.Equal(aimsOf(out2), aims) {
+		t.Errorf("target_side left: %v %v", err, aimsOf(out2))
+	}
+	_, err = m.Audit(AuditRequest{Spoke: whole(steelRound(2.0)), Readings: rds, TargetTensionN: &target, GeometricLeftRightRatio: &ratio, TargetSide: "right"})
+	if fe := fieldErr(t, err); fe.Pointer != "/target_side" || !fe.Unprocessable || !strings.Contains(fe.Message, "tighter side is the left") {
+		t.Errorf("target_side right on a disc front: %+v", fe)
+	}
+	// A rear wheel (ratio 0.6 < 1): the right is the tighter side; the
+	// left's aim is 1100 × 0.6 = 660 N. target_side left is refused.
+	rear := 0.6
+	t1100 := 1100.0
+	out, err = m.Audit(AuditRequest{Spoke: whole(steelRound(2.0)), Readings: rds, TargetTensionN: &t1100, GeometricLeftRightRatio: &rear})
+	if a := aimsOf(out); err != nil || out.TargetSide != "right" || a["right"] != 1100 || math.Abs(a["left"]-660) > 1e-9 {
+		t.Errorf("rear: %v %q %v", err, out.TargetSide, a)
+	}
+	_, err = m.Audit(AuditRequest{Spoke: whole(steelRound(2.0)), Readings: rds, TargetTensionN: &t1100, GeometricLeftRightRatio: &rear, TargetSide: "left"})
+	if fe := fieldErr(t, err); fe.Pointer != "/target_side" || !fe.Unprocessable {
+		t.Errorf("target_side left on a rear wheel: %+v", fe)
+	}
+	// Ratio 1 (undished): both sides are the tighter one; either side may be named.
+	one := 1.0
+	for _, side := range []string{"", "left", "right"} {
+		out, err = m.Audit(AuditRequest{Spoke: whole(steelRound(2.0)), Readings: rds, TargetTensionN: &target, GeometricLeftRightRatio: &one, TargetSide: side})
+		if a := aimsOf(out); err != nil || out.TargetSide != "both" || a["left"] != 1150 || a["right"] != 1150 {
+			t.Errorf("ratio 1, target_side %q: %v %q %v", side, err, out.TargetSide, a)
+		}
+	}
+}
+
+// TestAuditTargetWithoutRatio: without the geometric ratio the target
+// applies to both sides with a no_geometric_ratio warning; with
+// target_side it applies to that side only and the other side is judged
+// against its own mean (also warned). Without a target, no_target.
+func TestAuditTargetWithoutRatio(t *testing.T) {
+	m := synthModel(t)
+	rds := discFront(t)
+	target := 1150.0
+	out, err := m.Audit(AuditRequest{Spoke: whole(steelRound(2.0)), Readings: rds, TargetTensionN: &target})
+	if a := aimsOf(out); err != nil || out.TargetSide != "both" || a["left"] != 1150 || a["right"] != 1150 || !hasWarning(out.Warnings, WarnNoGeometricRatio) {
+		t.Errorf("no ratio: %v %q %v %+v", err, out.TargetSide, a, out.Warnings)
+	}
+	out, err = m.Audit(AuditRequest{Spoke: whole(steelRound(2.0)), Readings: rds, TargetTensionN: &target, TargetSide: "left"})
+	if err != nil {
+		t.Fatal(err)
+	}
+	var right SideSummary
+	for _, s := range out.Sides {
+		if s.Side == "right" {
+			right = s
+		}
+	}
+	if a := aimsOf(out); out.TargetSide != "left" || a["left"] != 1150 || right.AimN != right.MeanN || !hasWarning(out.Warnings, WarnNoGeometricRatio) {
+		t.Errorf("target_side left, no ratio: %q %v (right mean %v) %+v", out.TargetSide, a, right.MeanN, out.Warnings)
+	}
+	out, err = m.Audit(AuditRequest{Spoke: whole(steelRound(2.0)), Readings: rds})
+	if err != nil || out.TargetSide != "" || !hasWarning(out.Warnings, WarnNoTarget) || hasWarning(out.Warnings, WarnNoGeometricRatio) {
+		t.Errorf("no target: %v %q %+v", err, out.TargetSide, out.Warnings)
+	}
+	// A target_side that is neither side is malformed (400).
+	_, err = m.Audit(AuditRequest{Spoke: whole(steelRound(2.0)), Readings: rds, TargetTensionN: &target, TargetSide: "front"})
+	if fe := fieldErr(t, err); fe.Pointer != "/target_side" || fe.Unprocessable {
+		t.Errorf("target_side front: %+v", fe)
 	}
 }

@@ -62,7 +62,7 @@ func BenchmarkConvertRequest36(b *testing.B) {
 	for i := 0; i < 36; i++ {
 		rs = append(rs, math.Round(synthReading(b, spec, 900+10*float64(i))))
 	}
-	req := ConversionRequest{Spoke: spec, Readings: rs}
+	req := ConversionRequest{Spoke: whole(spec), Readings: rs}
 	b.ReportAllocs()
 	for b.Loop() {
 		if _, err := m.ConvertRequest(req); err != nil {

@@ -62,17 +62,23 @@ type Target struct {
 
 // prepared is a section ready for conversion against one model.
 type prepared struct {
-	m        *Model
-	at       string // pointer of the spoke spec
-	sec      section
-	es       evalSection
-	col      int  // matching column, −1 if none
-	inside   bool // within the calibrated envelope of sections
-	ratio    float64
-	deltaD   float64
-	secWarns []Warning
-	secCauts []string
-	unrel    bool
+	m      *Model
+	at     string // pointer of the spoke spec
+	sec    section
+	es     evalSection
+	col    int  // matching column, −1 if none
+	inside bool // between two columns of its material and profile
+	ratio  float64
+	deltaD float64
+	// floor says how the interval's least width is found (edge.go): edge
+	// is the nearest column, grow the stiffness ratio folded to ≥ 1, nbLo
+	// and nbHi the neighbouring columns of a section between two.
+	floor            int
+	edge, nbLo, nbHi int
+	grow             float64
+	secWarns         []Warning
+	secCauts         []string
+	unrel            bool
 }
 
 func (c ModelColumn) section() section {
@@ -81,6 +87,11 @@ func (c ModelColumn) section() section {
 
 // prepare resolves a section against the model. at is the JSON pointer of
 // the spoke spec in the request.
+//
+// The section is inside the calibration (status interpolated, when the
+// tension is too) when two columns of its material and profile bracket its
+// bending stiffness and thickness; another material or a profile no column
+// has is always extrapolation.
 func (m *Model) prepare(spec SpokeSpec, at string) (prepared, error) {
 	sec, err := spec.resolve(at)
 	if err != nil {
@@ -89,11 +100,10 @@ func (m *Model) prepare(spec SpokeSpec, at string) (prepared, error) {
 	if len(m.Columns) == 0 {
 		return prepared{}, impossible(at, "the model has no calibrated columns")
 	}
-	p := prepared{m: m, at: at, sec: sec, col: -1,
+	p := prepared{m: m, at: at, sec: sec, col: -1, nbLo: -1, nbHi: -1,
 		es: evalSection{ei0: sec.EI, ea: sec.EA, t: sec.T, kEI: 1, iK: -1, iC: -1}}
 	eiMin, eiMax := math.Inf(1), 0.0
-	tMin, tMax := math.Inf(1), 0.0
-	sameE := false
+	sameE, sameProfile := false, false
 	nearest, best := 0, math.Inf(1)
 	for i, c := range m.Columns {
 		cs := c.section()
@@ -101,33 +111,45 @@ func (m *Model) prepare(spec SpokeSpec, at string) (prepared, error) {
 			p.col = i
 		}
 		eiMin, eiMax = math.Min(eiMin, cs.EI), math.Max(eiMax, cs.EI)
-		tMin, tMax = math.Min(tMin, cs.T), math.Max(tMax, cs.T)
-		if math.Abs(cs.E-sec.E) <= 1e-9*cs.E {
-			sameE = true
+		kin := math.Abs(cs.E-sec.E) <= 1e-9*cs.E
+		sameE = sameE || kin
+		if cs.Spec.Profile == sec.Spec.Profile {
+			sameProfile = true
+			if kin {
+				// Neighbours of its own material and profile.
+				if cs.EI <= sec.EI && (p.nbLo < 0 || cs.EI > m.Columns[p.nbLo].EINmm2) {
+					p.nbLo = i
+				}
+				if cs.EI >= sec.EI && (p.nbHi < 0 || cs.EI < m.Columns[p.nbHi].EINmm2) {
+					p.nbHi = i
+				}
+			}
 		}
 		if d := math.Abs(math.Log(sec.EI / cs.EI)); d < best {
 			nearest, best = i, d
 		}
 	}
 	edge := m.Columns[nearest]
+	p.edge = nearest
 	p.ratio = sec.EI / edge.EINmm2
-	p.inside = sameE && sec.EI >= eiMin && sec.EI <= eiMax && sec.T >= tMin && sec.T <= tMax
+	if p.nbLo >= 0 && p.nbHi >= 0 {
+		tLo, tHi := m.Columns[p.nbLo].ThicknessMM, m.Columns[p.nbHi].ThicknessMM
+		p.inside = sec.T >= math.Min(tLo, tHi) && sec.T <= math.Max(tLo, tHi)
+	}
 	if sec.EI < eiMin || sec.EI > eiMax {
 		// Round diameter of equal EI in the edge column's material.
 		dEq := func(ei float64) float64 { return math.Pow(64*ei/(math.Pi*edge.EGPa*1000), 0.25) }
 		p.deltaD = dEq(sec.EI) - dEq(edge.EINmm2)
 	}
-	if p.col >= 0 {
+	switch {
+	case p.col >= 0:
+		p.floor = floorNone
 		p.ratio, p.deltaD, p.inside = 1, 0, true
-		if ph := m.Physical; ph != nil {
-			c := m.Columns[p.col]
-			if c.EIFactorIndex >= 0 && c.EIFactorIndex < len(ph.Params) {
-				p.es.iK, p.es.kEI = c.EIFactorIndex, ph.Params[c.EIFactorIndex]
-			}
-			if c.OffsetIndex >= 0 && c.OffsetIndex < len(ph.Params) {
-				p.es.iC, p.es.offset = c.OffsetIndex, ph.Params[c.OffsetIndex]
-			}
-		}
+		p.es = m.columnEval(p.col)
+	case p.inside:
+		p.floor = floorBetween
+	default:
+		p.floor, p.grow = floorOutside, math.Max(p.ratio, 1/p.ratio)
 	}
 	rr := math.Max(p.ratio, 1/p.ratio)
 	var desc string
@@ -136,9 +158,9 @@ func (m *Model) prepare(spec SpokeSpec, at string) (prepared, error) {
 	}
 	switch {
 	case rr > ratioUnreliable:
-		p.secWarns = make([]Warning, 0, 3)
+		p.secWarns = make([]Warning, 0, 4)
 	case rr > ratioCalibrate:
-		p.secWarns = make([]Warning, 0, 2)
+		p.secWarns = make([]Warning, 0, 3)
 	}
 	switch {
 	case rr > ratioUnreliable:
@@ -150,6 +172,9 @@ func (m *Model) prepare(spec SpokeSpec, at string) (prepared, error) {
 		fallthrough
 	case rr > ratioVerify:
 		p.secWarns = append(p.secWarns, Warning{WarnStiffnessVerify, "warning", msgVerify(p.ratio)})
+	}
+	if !sameProfile {
+		p.secWarns = append(p.secWarns, Warning{WarnProfileNotCalibrated, "warning", msgProfile(sec.Spec.Profile)})
 	}
 	if !sameE {
 		p.secCauts = append(p.secCauts, msgOtherModulus(sec.E))
@@ -167,8 +192,8 @@ func paramBuf(buf []float64, n int) []float64 {
 }
 
 // halfWidthUnits is t₀.₉₇₅·√(s² + gᵀCov g + m²), in dial units.
-func (p *prepared) halfWidthUnits(g []float64) float64 {
-	ph := p.m.Physical
+func (m *Model) halfWidthUnits(g []float64) float64 {
+	ph := m.Physical
 	v := ph.ResidualSDUnits*ph.ResidualSDUnits + modelFormUnits*modelFormUnits
 	for a := range g {
 		if g[a] == 0 {
@@ -185,8 +210,8 @@ func (p *prepared) halfWidthUnits(g []float64) float64 {
 // columnHalfWidth is the reading half-width used with a column curve: the
 // fitted scatter and model-form term when a tool model exists, otherwise
 // the half-unit reading resolution alone.
-func (p *prepared) columnHalfWidth() (w float64, resolutionOnly bool) {
-	if ph := p.m.Physical; ph != nil {
+func (m *Model) columnHalfWidth() (w float64, resolutionOnly bool) {
+	if ph := m.Physical; ph != nil {
 		s := ph.ResidualSDUnits
 		return ph.T975 * math.Sqrt(s*s+modelFormUnits*modelFormUnits), false
 	}
@@ -266,7 +291,7 @@ func (p *prepared) convert(reading float64, at func() string) (Result, error) {
 		cv := m.Columns[p.col].Curve.cubic()
 		if reading >= cv.X[0] && reading <= cv.X[len(cv.X)-1] {
 			t, slope := cv.at(reading)
-			w, resOnly := p.columnHalfWidth()
+			w, resOnly := m.columnHalfWidth()
 			lo, _ := cv.at(reading - w)
 			hi, _ := cv.at(reading + w)
 			res.TensionN, res.Method, res.Status = t, MethodColumn, StatusInterpolated
@@ -282,7 +307,7 @@ func (p *prepared) convert(reading float64, at func() string) (Result, error) {
 					"without a fitted tool model the interval covers only the dial's half-unit reading resolution, not the table's own error"})
 			}
 			res.SensitivityNPer001MM = p.sensitivity(reading)
-			warns, cauts = p.finish(&res.Reliable, warns, cauts, t, res.IntervalN, res.ResolutionNPerUnit, res.Status)
+			warns, cauts = p.finish(&res.Reliable, false, warns, cauts, t, res.IntervalN, res.ResolutionNPerUnit, res.Status)
 			res.Warnings, res.Cautions = append([]Warning{}, warns...), append([]string{}, cauts...)
 			res.TensionKgf, res.TensionLbf = KgfFromN(t), LbfFromN(t)
 			return res, nil
@@ -306,11 +331,13 @@ func (p *prepared) convert(reading float64, at func() string) (Result, error) {
 	if !(drdT > 0) {
 		return Result{}, impossible(at(), "the tool model's curve is not monotone at reading %g for this section; no tension is given", reading)
 	}
-	w := p.halfWidthUnits(g)
+	w := m.halfWidthUnits(g)
 	lo, hi, err := p.interval(reading, w, g, st.teff, at)
 	if err != nil {
 		return Result{}, err
 	}
+	lo, hi, widened, checked := p.widenTension(t, lo, hi)
+	warns = edgeWarnings(warns, widened, checked, t, (hi-lo)/2)
 	res.TensionN, res.IntervalN = t, [2]float64{lo, hi}
 	res.ResolutionNPerUnit = 1 / drdT
 	res.Method = MethodModel
@@ -319,7 +346,7 @@ func (p *prepared) convert(reading float64, at func() string) (Result, error) {
 	}
 	res.Status = p.modelStatus(t)
 	res.SensitivityNPer001MM = p.sensitivityFrom(reading, st.teff)
-	warns, cauts = p.finish(&res.Reliable, warns, cauts, t, res.IntervalN, res.ResolutionNPerUnit, res.Status)
+	warns, cauts = p.finish(&res.Reliable, !checked, warns, cauts, t, res.IntervalN, res.ResolutionNPerUnit, res.Status)
 	res.Warnings, res.Cautions = append([]Warning{}, warns...), append([]string{}, cauts...)
 	res.TensionKgf, res.TensionLbf = KgfFromN(t), LbfFromN(t)
 	return res, nil
@@ -329,15 +356,25 @@ func (p *prepared) convert(reading float64, at func() string) (Result, error) {
 // starting from the half-width at the estimate and re-evaluating it once
 // at each end.
 func (p *prepared) interval(reading, w0 float64, g []float64, teGuess float64, at func() string) (lo, hi float64, err error) {
-	ph, unit := p.m.Physical, p.m.UnitMM
+	lo, hi, ok := p.m.bandEnds(p.es, reading, w0, g, teGuess)
+	if !ok {
+		return 0, 0, impossible(at(), "reading %g is within the uncertainty band of the highest reading the tool model can produce for this section; the tension has no upper bound", reading)
+	}
+	return lo, hi, nil
+}
+
+// bandEnds is interval for section es; ok is false when the band has no
+// upper end. A lower end below what the model reaches is 0 (slack spoke).
+func (m *Model) bandEnds(es evalSection, reading, w0 float64, g []float64, teGuess float64) (lo, hi float64, ok bool) {
+	ph, unit := m.Physical, m.UnitMM
 	end := func(sign float64, w float64) (float64, bool) {
-		t, st, ok := inverseFrom(ph.Params, p.es, unit, reading+sign*w, teGuess)
+		t, st, ok := inverseFrom(ph.Params, es, unit, reading+sign*w, teGuess)
 		if !ok {
 			return 0, false
 		}
-		gradient(ph.Params, p.es, unit, st, g)
-		w2 := p.halfWidthUnits(g)
-		if t2, _, ok := inverseFrom(ph.Params, p.es, unit, reading+sign*w2, st.teff); ok {
+		gradient(ph.Params, es, unit, st, g)
+		w2 := m.halfWidthUnits(g)
+		if t2, _, ok := inverseFrom(ph.Params, es, unit, reading+sign*w2, st.teff); ok {
 			return t2, true
 		}
 		return t, true
@@ -348,9 +385,9 @@ func (p *prepared) interval(reading, w0 float64, g []float64, teGuess float64, a
 	}
 	hi, okHi := end(+1, w0)
 	if !okHi {
-		return 0, 0, impossible(at(), "reading %g is within the uncertainty band of the highest reading the tool model can produce for this section; the tension has no upper bound", reading)
+		return 0, 0, false
 	}
-	return lo, hi, nil
+	return lo, hi, true
 }
 
 // modelStatus is interpolated inside the envelope of calibrated sections
@@ -363,8 +400,10 @@ func (p *prepared) modelStatus(t float64) string {
 	return StatusExtrapolated
 }
 
-// finish adds the result-level warnings and cautions.
-func (p *prepared) finish(reliable *bool, warns []Warning, cauts []string, t float64, iv [2]float64, resolution float64, status string) ([]Warning, []string) {
+// finish adds the result-level warnings and cautions. unchecked marks an
+// answer whose interval could not be compared with the calibration beside
+// it (edge.go): it is not reliable.
+func (p *prepared) finish(reliable *bool, unchecked bool, warns []Warning, cauts []string, t float64, iv [2]float64, resolution float64, status string) ([]Warning, []string) {
 	rng := p.m.TensionRangeN
 	if t < rng[0] || t > rng[1] {
 		warns = append(warns, Warning{WarnOutsideTensionRange, "warning", msgOutsideRange(t, rng)})
@@ -377,7 +416,7 @@ func (p *prepared) finish(reliable *bool, warns []Warning, cauts []string, t flo
 	if wide {
 		warns = append(warns, Warning{WarnUnreliable, "warning", msgWide(hw, 100*hw/math.Max(t, 1e-9))})
 	}
-	if wide || p.unrel {
+	if wide || p.unrel || unchecked {
 		*reliable = false
 		cauts = append(cauts, msgBareNumber(t, iv))
 	}
@@ -415,7 +454,7 @@ func (p *prepared) target(tn float64, at string) (Target, error) {
 	if p.col >= 0 && m.Columns[p.col].Curve != nil {
 		cv := m.Columns[p.col].Curve.cubic()
 		if r, ok := cv.invert(tn); ok {
-			w, resOnly := p.columnHalfWidth()
+			w, resOnly := m.columnHalfWidth()
 			tg.Status, tg.Method = StatusInterpolated, MethodColumn
 			for i, y := range cv.Y {
 				if y == tn {
@@ -431,7 +470,7 @@ func (p *prepared) target(tn float64, at string) (Target, error) {
 					"without a fitted tool model the interval covers only the dial's half-unit reading resolution"})
 			}
 			tg.SensitivityNPer001MM = p.sensitivity(r)
-			warns, cauts = p.finish(&tg.Reliable, warns, cauts, tn, [2]float64{math.Max(lo, 0), hi}, slope, tg.Status)
+			warns, cauts = p.finish(&tg.Reliable, false, warns, cauts, tn, [2]float64{math.Max(lo, 0), hi}, slope, tg.Status)
 			tg.Warnings, tg.Cautions = append([]Warning{}, warns...), append([]string{}, cauts...)
 			return tg, nil
 		}
@@ -454,7 +493,9 @@ func (p *prepared) target(tn float64, at string) (Target, error) {
 	if !(drdT > 0) {
 		return Target{}, impossible(at, "the tool model's curve is not monotone at %g N for this section", tn)
 	}
-	w := p.halfWidthUnits(g)
+	w := m.halfWidthUnits(g)
+	w, widened, checked := p.widenUnits(tn, w, drdT)
+	warns = edgeWarnings(warns, widened, checked, tn, w/drdT)
 	tg.Reading, tg.ReadingInterval = r, [2]float64{r - w, r + w}
 	tg.ResolutionNPerUnit = 1 / drdT
 	tg.Method = MethodModel
@@ -465,7 +506,7 @@ func (p *prepared) target(tn float64, at string) (Target, error) {
 	tg.SensitivityNPer001MM = p.sensitivity(r)
 	// The tension interval this reading band implies, for the reliability test.
 	lo, hi := tn-w/drdT, tn+w/drdT
-	warns, cauts = p.finish(&tg.Reliable, warns, cauts, tn, [2]float64{math.Max(lo, 0), hi}, tg.ResolutionNPerUnit, tg.Status)
+	warns, cauts = p.finish(&tg.Reliable, !checked, warns, cauts, tn, [2]float64{math.Max(lo, 0), hi}, tg.ResolutionNPerUnit, tg.Status)
 	tg.Warnings, tg.Cautions = append([]Warning{}, warns...), append([]string{}, cauts...)
 	return tg, nil
 }

@@ -236,13 +236,13 @@ func TestRefusals(t *testing.T) {
 	}
 
 	// Request-level: inline calibration pointers are prefixed.
-	req := ConversionRequest{Calibration: &bad, Spoke: steelRound(2.0), Readings: []float64{50}}
+	req := ConversionRequest{Calibration: &bad, Spoke: whole(steelRound(2.0)), Readings: []float64{50}}
 	_, err = req.FitInline(Tool{})
 	if fe := fieldErr(t, err); fe.Pointer != "/calibration/columns/1/points/4/reading" {
 		t.Errorf("inline pointer %q", fe.Pointer)
 	}
 	// Out-of-reach reading in a request points at its index.
-	_, err = m.ConvertRequest(ConversionRequest{Spoke: steelRound(2.6), Readings: []float64{math.Round(synthReading(t, steelRound(2.6), 1000)), 1e5}})
+	_, err = m.ConvertRequest(ConversionRequest{Spoke: whole(steelRound(2.6)), Readings: []float64{math.Round(synthReading(t, steelRound(2.6), 1000)), 1e5}})
 	if fe := fieldErr(t, err); fe.Pointer != "/readings/1" {
 		t.Errorf("request pointer %q", fe.Pointer)
 	}
@@ -289,7 +289,7 @@ func TestModelJSONRoundTrip(t *testing.T) {
 func TestRequestTargets(t *testing.T) {
 	m := synthModel(t)
 	kgf := 120.0
-	out, err := m.ConvertRequest(ConversionRequest{Spoke: steelRound(2.0), TargetTensionKgf: &kgf})
+	out, err := m.ConvertRequest(ConversionRequest{Spoke: whole(steelRound(2.0)), TargetTensionKgf: &kgf})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -298,7 +298,76 @@ func TestRequestTargets(t *testing.T) {
 		t.Errorf("target %+v", out.Target)
 	}
 	n := 1000.0
-	if _, err := m.ConvertRequest(ConversionRequest{Spoke: steelRound(2.0), TargetTensionN: &n, TargetTensionKgf: &kgf}); err == nil {
+	if _, err := m.ConvertRequest(ConversionRequest{Spoke: whole(steelRound(2.0)), TargetTensionN: &n, TargetTensionKgf: &kgf}); err == nil {
 		t.Error("two targets accepted")
+	}
+}
+
+// TestProfileNotInCalibration: a bladed or oval section converted from
+// the synthetic tool's round-only table carries profile_not_in_calibration
+// in a conversion, a target and an audit, and is extrapolated (with its
+// caution); a round section does not carry it, nor does a blade once the
+// calibration has a bladed column.
+func TestProfileNotInCalibration(t *testing.T) {
+	m := synthModel(t)
+	blade := SpokeSpec{Profile: "bladed", WidthMM: 2.3, ThicknessMM: 1.3, Material: "stainless_steel"}
+	oval := SpokeSpec{Profile: "oval", WidthMM: 2.2, ThicknessMM: 1.6, Material: "stainless_steel"}
+	for _, spec := range []SpokeSpec{blade, oval} {
+		res, err := m.Convert(spec, math.Round(synthReading(t, spec, 1000)))
+		if err != nil {
+			t.Fatal(err)
+		}
+		if !hasWarning(res.Warnings, WarnProfileNotCalibrated) || res.Status != StatusExtrapolated || len(res.Cautions) == 0 {
+			t.Errorf("%s conversion: status %s warnings %+v cautions %q", spec.Profile, res.Status, res.Warnings, res.Cautions)
+		}
+		tg, err := m.Target(spec, 1000)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if !hasWarning(tg.Warnings, WarnProfileNotCalibrated) || tg.Status != StatusExtrapolated {
+			t.Errorf("%s target: status %s warnings %+v", spec.Profile, tg.Status, tg.Warnings)
+		}
+		// Audit: round on the left, this profile on the right; the warning
+		// comes once, at the top of the audit.
+		target, ratio := 1000.0, 0.8
+		var rds []AuditReading
+		for i := range 4 {
+			rds = append(rds, AuditReading{Side: "right", Spoke: i, Reading: synthReading(t, spec, 1000)},
+				AuditReading{Side: "left", Spoke: i, Reading: synthReading(t, steelRound(2.0), 800)})
+		}
+		a, err := m.Audit(AuditRequest{Spoke: whole(steelRound(2.0)), SpokeRight: wholePtr(spec), Readings: rds, TargetTensionN: &target, GeometricLeftRightRatio: &ratio})
+		if err != nil {
+			t.Fatal(err)
+		}
+		n := 0
+		for _, w := range a.Warnings {
+			if w.Code == WarnProfileNotCalibrated {
+				n++
+			}
+		}
+		if n != 1 {
+			t.Errorf("%s audit: %d profile warnings in %+v", spec.Profile, n, a.Warnings)
+		}
+	}
+	res, err := m.Convert(steelRound(2.6), math.Round(synthReading(t, steelRound(2.6), 1000)))
+	if err != nil || hasWarning(res.Warnings, WarnProfileNotCalibrated) {
+		t.Errorf("round 2.6 mm: %v %+v", err, res.Warnings)
+	}
+	// A calibration with a bladed column (the synthetic tool's readings on
+	// a 2.3 × 1.3 mm blade): another blade converts without the warning.
+	cal := synthCalibration(t)
+	col := Column{Spoke: blade}
+	for tn := 400.0; tn <= 1600; tn += 100 {
+		col.Points = append(col.Points, Point{TensionN: tn, Reading: math.Round(synthReading(t, blade, tn))})
+	}
+	cal.Columns = append(cal.Columns, col)
+	mb, err := Fit(cal, Tool{})
+	if err != nil || mb.Physical == nil {
+		t.Fatalf("fit with a bladed column: %v", err)
+	}
+	other := SpokeSpec{Profile: "bladed", WidthMM: 2.2, ThicknessMM: 1.2, Material: "stainless_steel"}
+	res, err = mb.Convert(other, math.Round(synthReading(t, other, 1000)))
+	if err != nil || hasWarning(res.Warnings, WarnProfileNotCalibrated) {
+		t.Errorf("blade on a calibration with a bladed column: %v %+v", err, res.Warnings)
 	}
 }

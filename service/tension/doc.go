@@ -11,7 +11,10 @@
 // points refined that section): a tensioned beam between the anvils, a
 // preloaded plunger spring, a dial offset and the tension the tool itself
 // adds, fitted to every point of the calibration by Levenberg–Marquardt.
-// Straight lines of reading against diameter are never used.
+// Straight lines of reading against diameter are never used. An answer off
+// the calibrated columns is never reported as more certain than the
+// calibration beside it at the same tension (edge.go), and a profile no
+// column has carries a warning to verify the tool against a known tension.
 //
 // The package is pure: no context, no I/O, no logging, deterministic. It
 // imports the standard library, gonum (numerics) and wheelbench/service/spoke

@@ -83,7 +83,11 @@ func (m monotoneCubic) at(x float64) (y, dydx float64) {
 	if x >= m.X[n-1] {
 		return m.Y[n-1] + m.D[n-1]*(x-m.X[n-1]), m.D[n-1]
 	}
-	i := m.segment(x)
+	return m.piece(m.segment(x), x)
+}
+
+// piece evaluates y(x) and dy/dx on the piece [X[i], X[i+1]].
+func (m monotoneCubic) piece(i int, x float64) (y, dydx float64) {
 	h := m.X[i+1] - m.X[i]
 	s := (x - m.X[i]) / h
 	s2, s3 := s*s, s*s*s
@@ -100,9 +104,10 @@ func (m monotoneCubic) at(x float64) (y, dydx float64) {
 	return y, dydx
 }
 
-// invert returns x with y(x) = y for an increasing interpolant, by
-// bisection on the bracketing piece followed by Newton polishing. ok is
-// false when y lies outside [Y[0], Y[n-1]].
+// invert returns x with y(x) = y for an increasing interpolant: Newton's
+// method on the bracketing piece, falling back to bisection whenever a step
+// would leave the bracket (the piece is monotone, so the bracket always
+// holds the root). ok is false when y lies outside [Y[0], Y[n-1]].
 func (m monotoneCubic) invert(y float64) (x float64, ok bool) {
 	n := len(m.Y)
 	if !(y >= m.Y[0] && y <= m.Y[n-1]) {
@@ -113,13 +118,29 @@ func (m monotoneCubic) invert(y float64) (x float64, ok bool) {
 		i++
 	}
 	lo, hi := m.X[i], m.X[i+1]
-	for k := 0; k < 200 && hi-lo > 1e-13*math.Max(1, math.Abs(hi)); k++ {
-		mid := 0.5 * (lo + hi)
-		if v, _ := m.at(mid); v < y {
-			lo = mid
-		} else {
-			hi = mid
-		}
+	x = lo
+	if dy := m.Y[i+1] - m.Y[i]; dy > 0 {
+		x = lo + (hi-lo)*(y-m.Y[i])/dy // the secant's root
 	}
-	return 0.5 * (lo + hi), true
+	for k := 0; k < 100; k++ {
+		v, d := m.piece(i, x)
+		f := v - y
+		if f == 0 {
+			return x, true
+		}
+		if f < 0 {
+			lo = x
+		} else {
+			hi = x
+		}
+		next := x - f/d
+		if !(d > 0) || !(next > lo && next < hi) {
+			next = 0.5 * (lo + hi)
+		}
+		if math.Abs(next-x) <= 1e-13*math.Max(1, math.Abs(x)) || hi-lo <= 1e-13*math.Max(1, math.Abs(hi)) {
+			return next, true
+		}
+		x = next
+	}
+	return x, true
 }

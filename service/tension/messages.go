@@ -135,3 +135,37 @@ func msgBareNumber(t float64, iv [2]float64) string {
 	b = append(b, " N. Calibrate this spoke size against known tensions before building to it."...)
 	return string(b)
 }
+
+// msgProfile: "no calibrated column has a %s profile: this result rests on
+// the tool model's beam physics alone (the section's bending stiffness and
+// its thickness under the plunger, measured with the wide face flat against
+// the anvils). Verify the tool on this spoke against a known tension before
+// building to it".
+func msgProfile(profile string) string {
+	var buf [320]byte
+	b := append(buf[:0], "no calibrated column has a "...)
+	b = append(b, profile...)
+	b = append(b, " profile: this result rests on the tool model's beam physics alone (the section's bending stiffness and its thickness under the plunger, measured with the wide face flat against the anvils). Verify the tool on this spoke against a known tension before building to it"...)
+	return string(b)
+}
+
+// msgWidened: "the interval is widened to ±%.1f %% of the tension: an
+// answer off the calibrated columns is never more certain than the
+// calibration beside it at the same tension".
+func msgWidened(share float64) string {
+	var buf [192]byte
+	b := append(buf[:0], "the interval is widened to ±"...)
+	b = fixed(b, share, 1)
+	b = append(b, " % of the tension: an answer off the calibrated columns is never more certain than the calibration beside it at the same tension"...)
+	return string(b)
+}
+
+// msgUnchecked: "the calibrated columns beside this section cannot be
+// evaluated at %.0f N, so its interval cannot be checked against them".
+func msgUnchecked(t float64) string {
+	var buf [160]byte
+	b := append(buf[:0], "the calibrated columns beside this section cannot be evaluated at "...)
+	b = fixed0(b, t)
+	b = append(b, " N, so its interval cannot be checked against them"...)
+	return string(b)
+}

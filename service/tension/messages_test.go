@@ -46,6 +46,10 @@ func TestMessagesMatchFmt(t *testing.T) {
 			"the 95 %% interval is ±%.0f N (%.1f %% of the tension, beyond %.0f %%)", v, w, 100*halfWidthMax))
 		check("bare number", msgBareNumber(v, [2]float64{w, x}), fmt.Sprintf(
 			"Do not use %.0f N as a bare number: the true tension may lie anywhere in %.0f–%.0f N. Calibrate this spoke size against known tensions before building to it.", v, w, x))
+		check("widened", msgWidened(v), fmt.Sprintf(
+			"the interval is widened to ±%.1f %% of the tension: an answer off the calibrated columns is never more certain than the calibration beside it at the same tension", v))
+		check("unchecked", msgUnchecked(v), fmt.Sprintf(
+			"the calibrated columns beside this section cannot be evaluated at %.0f N, so its interval cannot be checked against them", v))
 		for _, s := range []section{
 			{Spec: SpokeSpec{Profile: "round", DiameterMM: v}, E: w},
 			{Spec: SpokeSpec{Profile: "bladed", WidthMM: v, ThicknessMM: x}, E: w},
@@ -55,6 +59,17 @@ func TestMessagesMatchFmt(t *testing.T) {
 				want = fmt.Sprintf("%s %g × %g mm, E %g GPa", s.Spec.Profile, s.Spec.WidthMM, s.Spec.ThicknessMM, s.E)
 			}
 			check("describe", s.describe(), want)
+		}
+	}
+}
+
+// TestProfileMessage: the profile warning names the profile and asks for
+// a known tension.
+func TestProfileMessage(t *testing.T) {
+	for _, p := range []string{"bladed", "oval", "rectangular", "round"} {
+		want := fmt.Sprintf("no calibrated column has a %s profile: this result rests on the tool model's beam physics alone (the section's bending stiffness and its thickness under the plunger, measured with the wide face flat against the anvils). Verify the tool on this spoke against a known tension before building to it", p)
+		if got := msgProfile(p); got != want {
+			t.Errorf("got %q\nwant %q", got, want)
 		}
 	}
 }

@@ -113,6 +113,14 @@ const (
 	// WarnResolutionOnlyInterval: no fitted scatter; the interval reflects
 	// the dial's half-unit reading resolution only.
 	WarnResolutionOnlyInterval = "interval_resolution_only"
+	// WarnProfileNotCalibrated: no calibrated column has the section's
+	// profile (a bladed or oval spoke on a round-only table): verify the
+	// tool on this spoke against a known tension.
+	WarnProfileNotCalibrated = "profile_not_in_calibration"
+	// WarnIntervalWidened (info): the interval was widened so that an
+	// answer off the calibrated columns is no more certain than the
+	// calibration beside it at the same tension (edge.go).
+	WarnIntervalWidened = "interval_widened_to_calibration"
 )
 
 // Method names of a result.

@@ -1,18 +1,23 @@
 package tension
 
-import "errors"
+import (
+	"errors"
+
+	"wheelbench/service/spoke"
+)
 
 // maxReadings bounds one conversion request.
 const maxReadings = 1000
 
 // ConversionRequest is the body of a conversion: a calibration (by id,
-// which the caller resolves to a stored Model, or inline), a spoke section,
-// and either readings or exactly one target tension in N, kgf or lbf.
+// which the caller resolves to a stored Model, or inline), the spoke (the
+// same description as everywhere; its measured section is converted), and
+// either readings or exactly one target tension in N, kgf or lbf.
 type ConversionRequest struct {
 	// CalibrationID is resolved by the caller; this package ignores it.
 	CalibrationID    string       `json:"calibration_id,omitempty"`
 	Calibration      *Calibration `json:"calibration,omitempty"`
-	Spoke            SpokeSpec    `json:"spoke"`
+	Spoke            spoke.Spec   `json:"spoke"`
 	Readings         []float64    `json:"readings,omitempty"`
 	TargetTensionN   *float64     `json:"target_tension_n,omitempty"`
 	TargetTensionKgf *float64     `json:"target_tension_kgf,omitempty"`
@@ -63,7 +68,7 @@ func (m *Model) ConvertRequest(req ConversionRequest) (ConversionResponse, error
 	case len(req.Readings) > maxReadings:
 		return ConversionResponse{}, badField("/readings", "at most %d readings per request", maxReadings)
 	}
-	p, err := m.prepare(req.Spoke, "/spoke")
+	p, err := m.prepareSpoke(req.Spoke, "/spoke")
 	if err != nil {
 		return ConversionResponse{}, err
 	}

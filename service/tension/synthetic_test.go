@@ -3,6 +3,7 @@ package tension
 import (
 	"math"
 	"testing"
+	"wheelbench/service/spoke"
 )
 
 // synthTool is a SYNTHETIC tensiometer invented for the tests: its readings
@@ -62,3 +63,19 @@ func synthModel(t testing.TB) *Model {
 	}
 	return m
 }
+
+// whole is a section as a whole spoke of that section all along (a round
+// one by its diameter), for the requests that take a spoke.
+func whole(s SpokeSpec) spoke.Spec {
+	out := spoke.Spec{Profile: spoke.Profile(s.Profile), Material: s.Material, EGPa: s.EGPa}
+	if s.Profile == "" || s.Profile == string(spoke.Round) {
+		d := s.DiameterMM
+		out.DiameterMM = &d
+	} else {
+		w, t := s.WidthMM, s.ThicknessMM
+		out.WidthMM, out.ThicknessMM = &w, &t
+	}
+	return out
+}
+
+func wholePtr(s SpokeSpec) *spoke.Spec { w := whole(s); return &w }
