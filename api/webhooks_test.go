@@ -89,6 +89,8 @@ func TestWebhookEndpointLifecycle(t *testing.T) {
 		{"missing events", map[string]any{"url": "https://receiver.example/"}, 400, ""},
 		{"ftp", map[string]any{"url": "ftp://receiver.example/", "events": []string{"*"}}, 400, "/url"},
 		{"user info", map[string]any{"url": "https://u:p@receiver.example/", "events": []string{"*"}}, 400, "/url"},
+		// 10.12.3. after IDNA's mapping: IPv4 shorthand, no DNS name.
+		{"numeric host in halfwidth stops", map[string]any{"url": "http://10\uff6112\uff613\uff61/", "events": []string{"*"}}, 400, "/url"},
 		{"unknown field", map[string]any{"url": "https://receiver.example/", "events": []string{"*"}, "secret": "x"}, 400, "/secret"},
 	}
 	for _, c := range bad {
@@ -127,7 +129,7 @@ func TestWebhookEndpointRefusesPrivateDestinations(t *testing.T) {
 		// The same hosts with non-ASCII full stops and fullwidth forms.
 		"http://127\u30020\u30020\u30021/hook",
 		"http://169\uff0e254\uff0e169\uff0e254/latest/meta-data/",
-		"http://10\uff6112\uff613\uff61/",
+		"http://10\uff611\uff612\uff613/",
 		"http://localhost\u3002/hook",
 		"http://\uff4c\uff4f\uff43\uff41\uff4c\uff48\uff4f\uff53\uff54/hook",
 	} {
