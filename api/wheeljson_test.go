@@ -43,7 +43,25 @@ var wheelSeeds = []string{
 	`{"spoke_count": 32,}`, `{"spoke_count": 32} {}`, `{"spoke_count": 32}x`, `{"hub": {"motor": tru}}`,
 	`{"hub": {"motor": 1}}`, `{"spoke": {"sections": [1]}}`, `{"spoke": {"sections": [{},]}}`,
 	`{"stock": {"lengths_mm": [1,,2]}}`, "{\"hub\": {\"type\": \"a\tb\"}}",
+	// The shared hub, flange and spoke members and include_lacing.
+	sharedMembersSeed,
+	`{"include_lacing": false}`, `{"include_lacing": null}`, `{"include_lacing": 1}`, `{"include_lacing": "true"}`,
+	`{"Include_lacing": true}`, `{"include_lacing": true, "include_lacing": false}`,
+	`{"hub": {"kind": "motor", "kind": "cargo"}}`, `{"hub": {"brake": null}}`, `{"hub": {"holes": 32.5}}`,
+	`{"hub": {"left": {"spokes": 1.5}}}`, `{"hub": {"left": {"spokes": null}}}`, `{"hub": {"left": {"exit": "\u0000"}}}`,
+	`{"hub": {"left": {"exit_angle_deg": 1e999}}}`, `{"hub": {"left": {"Exit": "angled"}}}`,
+	`{"spoke": {"measured_section": "section_\u0031"}}`, `{"spoke": {"measured_section": "a\u0000"}}`,
+	`{"spoke": {"sections": [{"profile": null}]}}`, `{"spoke": {"sections": [{"length_mm": 1, "Profile": "oval"}]}}`,
+	`{"spoke": {"profile": "bladed", "width_mm": 2.3, "thickness_mm": 1.2}}`, `{"spoke": {"thread": {"tpi": 56}}}`,
 }
+
+// sharedMembersSeed sets every hub, flange and spoke member the fast path
+// knows, in the plain form it must take.
+const sharedMembersSeed = `{"spoke_count":32,"include_lacing":true,"hub":{"holes":32,"kind":"bicycle","type":"straight_pull","brake":"rotor",` +
+	`"left":{"pcd_mm":45,"center_to_flange_mm":30,"spokes":16,"exit":"tangential"},` +
+	`"right":{"pcd_mm":45,"center_to_flange_mm":20,"spokes":16,"exit":"angled","exit_angle_deg":80}},` +
+	`"rim":{"erd_mm":599},"crosses":{"left":3,"right":3},"spoke":{"profile":"round","diameter_mm":2,"measured_section":"section_1",` +
+	`"sections":[{"length_mm":200,"profile":"round","diameter_mm":1.8}],"width_mm":2.3,"thickness_mm":1.2}}`
 
 // agree fails unless the fast path either declines or decodes exactly what
 // the strict decoder (decodeBytes, package strictjson) decodes.
@@ -72,6 +90,10 @@ func TestWheelParserAgrees(t *testing.T) {
 	// The plain forms must take the fast path, or it is no use.
 	if took < 3 {
 		t.Errorf("the fast path took %d of the seeds, want at least the 3 plain ones", took)
+	}
+	var w geometry.Wheel
+	if !parseWheel([]byte(sharedMembersSeed), &w, nil) {
+		t.Errorf("the fast path declined the plain form of the shared members")
 	}
 }
 
