@@ -413,8 +413,8 @@ func (e *env) changeCount() int {
 		}
 		e.want(e.do("GET", "/v1/changes?limit=1000&after="+after, e.keyA[service.RoleRead], nil), 200).json(e.t, &page)
 		n += len(page.Changes)
-		if len(page.Changes) == 0 {
-			return n
+		if page.NextCursor == after || len(page.Changes) == 0 {
+			return n // caught up (an unfiltered page is full until then)
 		}
 		after = page.NextCursor
 	}

@@ -14,7 +14,8 @@ import (
 
 // idempotent makes a creating POST safe to retry: with an Idempotency-Key
 // header the request runs at most once per organisation and key, and a
-// retry gets the first response (status, body, Location and ETag) again,
+// retry (the same method, path, body and, for a key held to one location,
+// that location) gets the first response (status, body, Location and ETag) again,
 // marked Idempotent-Replayed: true. Keys are kept 24 hours.
 func (s *Server) idempotent(next echo.HandlerFunc) echo.HandlerFunc {
 	return func(c echo.Context) error {
@@ -29,6 +30,12 @@ func (s *Server) idempotent(next echo.HandlerFunc) echo.HandlerFunc {
 		c.Request().Body = io.NopCloser(bytes.NewReader(body))
 		h := sha256.New()
 		io.WriteString(h, c.Request().Method+" "+c.Request().URL.Path+"\n")
+		// A key held to one location must not be replayed an answer given
+		// to a key of the whole organisation (or of another location): the
+		// location it is held to is part of what the request is.
+		if loc := principal(c).LocationID; loc != nil {
+			io.WriteString(h, "held to "+loc.String()+"\n")
+		}
 		h.Write(body)
 
 		real := c.Response().Writer

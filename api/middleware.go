@@ -50,8 +50,13 @@ func (s *Server) authenticate(next echo.HandlerFunc) echo.HandlerFunc {
 			return err
 		}
 		c.Set("principal", p)
-		if r, ok := s.routeFor(c.Request().Method, c.Path()); ok && !p.Role.AtLeast(r.Role) {
-			return &httpProblem{status: http.StatusForbidden, detail: "This operation needs a key with role " + string(r.Role) + " or higher."}
+		if r, ok := s.routeFor(c.Request().Method, c.Path()); ok {
+			if !p.Role.AtLeast(r.Role) {
+				return &httpProblem{status: http.StatusForbidden, detail: "This operation needs a key with role " + string(r.Role) + " or higher."}
+			}
+			if r.OrgWide && p.Bound() {
+				return &httpProblem{status: http.StatusForbidden, detail: "This API key is held to one location; this operation needs a key of the whole organisation."}
+			}
 		}
 		return next(c)
 	}

@@ -11,8 +11,10 @@ import (
 	"wheelbench/service"
 )
 
-// routeTable lists every operation of the spec with its handler, role and
-// body limit. The parity test checks it against openapi.yaml both ways.
+// routeTable lists every operation of the spec with its handler, role,
+// whether it is organisation-wide (OrgWide: refused to keys held to one
+// location) and body limit. The parity test checks it against openapi.yaml
+// both ways.
 func (s *Server) routeTable(g prometheus.Gatherer) []Route {
 	if g == nil {
 		g = prometheus.NewRegistry()
@@ -27,19 +29,19 @@ func (s *Server) routeTable(g prometheus.Gatherer) []Route {
 		{Method: http.MethodGet, Path: "/v1/me", Role: service.RoleRead, handler: s.getMe},
 
 		{Method: http.MethodGet, Path: "/v1/locations", Role: service.RoleRead, handler: s.listLocations},
-		{Method: http.MethodPost, Path: "/v1/locations", Role: service.RoleAdmin, Idempotent: true, handler: s.createLocation},
+		{Method: http.MethodPost, Path: "/v1/locations", Role: service.RoleAdmin, OrgWide: true, Idempotent: true, handler: s.createLocation},
 		{Method: http.MethodGet, Path: "/v1/locations/{id}", Role: service.RoleRead, handler: s.getLocation},
 		{Method: http.MethodPatch, Path: "/v1/locations/{id}", Role: service.RoleAdmin, handler: s.updateLocation},
 
-		{Method: http.MethodGet, Path: "/v1/api-keys", Role: service.RoleAdmin, handler: s.listAPIKeys},
+		{Method: http.MethodGet, Path: "/v1/api-keys", Role: service.RoleAdmin, OrgWide: true, handler: s.listAPIKeys},
 		// Not idempotent by key: a replay would have to keep the secret.
-		{Method: http.MethodPost, Path: "/v1/api-keys", Role: service.RoleAdmin, handler: s.createAPIKey},
-		{Method: http.MethodDelete, Path: "/v1/api-keys/{id}", Role: service.RoleAdmin, handler: s.revokeAPIKey},
+		{Method: http.MethodPost, Path: "/v1/api-keys", Role: service.RoleAdmin, OrgWide: true, handler: s.createAPIKey},
+		{Method: http.MethodDelete, Path: "/v1/api-keys/{id}", Role: service.RoleAdmin, OrgWide: true, handler: s.revokeAPIKey},
 
 		{Method: http.MethodGet, Path: "/v1/parts", Role: service.RoleRead, handler: s.listParts},
-		{Method: http.MethodPost, Path: "/v1/parts", Role: service.RoleWrite, Idempotent: true, handler: s.createPart},
+		{Method: http.MethodPost, Path: "/v1/parts", Role: service.RoleWrite, OrgWide: true, Idempotent: true, handler: s.createPart},
 		{Method: http.MethodGet, Path: "/v1/parts/{id}", Role: service.RoleRead, handler: s.getPart},
-		{Method: http.MethodPatch, Path: "/v1/parts/{id}", Role: service.RoleWrite, handler: s.updatePart},
+		{Method: http.MethodPatch, Path: "/v1/parts/{id}", Role: service.RoleWrite, OrgWide: true, handler: s.updatePart},
 		{Method: http.MethodGet, Path: "/v1/parts/{id}/stock", Role: service.RoleRead, handler: s.getPartStock},
 		{Method: http.MethodPut, Path: "/v1/parts/{id}/stock", Role: service.RoleWrite, handler: s.putPartStock},
 
@@ -50,7 +52,7 @@ func (s *Server) routeTable(g prometheus.Gatherer) []Route {
 		{Method: http.MethodGet, Path: "/v1/builds/{id}/tension-audits", Role: service.RoleRead, handler: s.listBuildAudits},
 		{Method: http.MethodPost, Path: "/v1/builds/{id}/tension-audits", Role: service.RoleWrite, Idempotent: true, handler: s.createBuildAudit},
 		{Method: http.MethodGet, Path: "/v1/price-list", Role: service.RoleRead, handler: s.getPriceList},
-		{Method: http.MethodPut, Path: "/v1/price-list", Role: service.RoleAdmin, handler: s.putPriceList},
+		{Method: http.MethodPut, Path: "/v1/price-list", Role: service.RoleAdmin, OrgWide: true, handler: s.putPriceList},
 		{Method: http.MethodPost, Path: "/v1/quotes", Role: service.RoleWrite, Idempotent: true, handler: s.createQuote},
 		{Method: http.MethodGet, Path: "/v1/quotes/{id}", Role: service.RoleRead, handler: s.getQuote},
 		{Method: http.MethodPost, Path: "/v1/quotes/{id}/accept", Role: service.RoleWrite, Idempotent: true, handler: s.acceptQuote},
@@ -70,12 +72,12 @@ func (s *Server) routeTable(g prometheus.Gatherer) []Route {
 
 		{Method: http.MethodGet, Path: "/v1/changes", Role: service.RoleRead, handler: s.listChanges},
 
-		{Method: http.MethodGet, Path: "/v1/webhook-endpoints", Role: service.RoleAdmin, handler: s.listWebhookEndpoints},
+		{Method: http.MethodGet, Path: "/v1/webhook-endpoints", Role: service.RoleAdmin, OrgWide: true, handler: s.listWebhookEndpoints},
 		// Not idempotent by key: a replay would have to keep the signing secret.
-		{Method: http.MethodPost, Path: "/v1/webhook-endpoints", Role: service.RoleAdmin, handler: s.createWebhookEndpoint},
-		{Method: http.MethodGet, Path: "/v1/webhook-endpoints/{id}", Role: service.RoleAdmin, handler: s.getWebhookEndpoint},
-		{Method: http.MethodPatch, Path: "/v1/webhook-endpoints/{id}", Role: service.RoleAdmin, handler: s.updateWebhookEndpoint},
-		{Method: http.MethodDelete, Path: "/v1/webhook-endpoints/{id}", Role: service.RoleAdmin, handler: s.deleteWebhookEndpoint},
+		{Method: http.MethodPost, Path: "/v1/webhook-endpoints", Role: service.RoleAdmin, OrgWide: true, handler: s.createWebhookEndpoint},
+		{Method: http.MethodGet, Path: "/v1/webhook-endpoints/{id}", Role: service.RoleAdmin, OrgWide: true, handler: s.getWebhookEndpoint},
+		{Method: http.MethodPatch, Path: "/v1/webhook-endpoints/{id}", Role: service.RoleAdmin, OrgWide: true, handler: s.updateWebhookEndpoint},
+		{Method: http.MethodDelete, Path: "/v1/webhook-endpoints/{id}", Role: service.RoleAdmin, OrgWide: true, handler: s.deleteWebhookEndpoint},
 
 		{Method: http.MethodPost, Path: "/v1/spoke-lengths", Role: service.RoleRead, OwnBodyCheck: true, handler: s.computeSpokeLengths},
 		{Method: http.MethodPost, Path: "/v1/spoke-lengths/batch", Role: service.RoleRead, BodyLimit: BatchBodyLimit, OwnBodyCheck: true, handler: s.computeSpokeLengthsBatch},

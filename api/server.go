@@ -61,6 +61,10 @@ type Route struct {
 	Path      string // OpenAPI form, /v1/locations/{id}
 	Role      service.Role
 	BodyLimit int64
+	// OrgWide routes change or reveal the whole organisation (locations,
+	// keys, webhooks, the catalog and price list): a key held to one
+	// location gets 403.
+	OrgWide bool
 	// Idempotent routes honour Idempotency-Key (every creating POST).
 	Idempotent bool
 	// OwnBodyCheck skips the spec's request-body validation: the handler

@@ -42,7 +42,7 @@ func (s *Service) RecordBuildAudit(ctx context.Context, p Principal, buildID uui
 	if utf8.RuneCountInString(in.Notes) > 10000 {
 		return BuildTensionAudit{}, Invalid("/notes", "notes must be at most 10000 characters")
 	}
-	b, err := s.store.GetBuild(ctx, p.OrgID, buildID)
+	b, err := s.reachableBuild(ctx, p, buildID)
 	if err != nil {
 		return BuildTensionAudit{}, err
 	}
@@ -87,7 +87,7 @@ func (s *Service) RecordBuildAudit(ctx context.Context, p Principal, buildID uui
 
 // ListBuildAudits lists a build's audits, oldest first.
 func (s *Service) ListBuildAudits(ctx context.Context, p Principal, buildID uuid.UUID, page Page) ([]BuildTensionAudit, error) {
-	if _, err := s.store.GetBuild(ctx, p.OrgID, buildID); err != nil {
+	if _, err := s.reachableBuild(ctx, p, buildID); err != nil {
 		return nil, err
 	}
 	return s.store.ListBuildAudits(ctx, p.OrgID, buildID, page)

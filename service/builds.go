@@ -304,7 +304,7 @@ func (s *Service) CreateBuild(ctx context.Context, p Principal, in BuildInput) (
 	// An org-scoped read, so that a location of another organisation is a
 	// 422 naming the field; the database's foreign key holds it as well.
 	_, cal, err := s.locationWithCalibration(ctx, p.OrgID, in.LocationID)
-	if errors.Is(err, ErrNotFound) {
+	if errors.Is(err, ErrNotFound) || (err == nil && !p.Reaches(in.LocationID)) {
 		return Build{}, Unprocessable("/location_id", "no such location in this organisation")
 	} else if err != nil {
 		return Build{}, err
@@ -445,13 +445,30 @@ func measuredSectionOf(sp spoke.Spec) MeasuredSection {
 
 // GetBuild reads one build.
 func (s *Service) GetBuild(ctx context.Context, p Principal, id uuid.UUID) (Build, error) {
-	return s.store.GetBuild(ctx, p.OrgID, id)
+	return s.reachableBuild(ctx, p, id)
 }
 
-// ListBuilds lists builds by id with filters.
+// reachableBuild reads a build at a location p reaches: any other is
+// ErrNotFound, as another organisation's is.
+func (s *Service) reachableBuild(ctx context.Context, p Principal, id uuid.UUID) (Build, error) {
+	b, err := s.store.GetBuild(ctx, p.OrgID, id)
+	if err == nil && !p.Reaches(b.LocationID) {
+		return Build{}, ErrNotFound
+	}
+	return b, err
+}
+
+// ListBuilds lists builds by id with filters; a key held to one location
+// lists that location's.
 func (s *Service) ListBuilds(ctx context.Context, p Principal, f BuildFilter, page Page) ([]Build, error) {
 	if f.Status != "" && !f.Status.Valid() {
 		return nil, Invalid("query:status", "status must be one of draft, quoted, ordered, in_progress, done, cancelled")
+	}
+	if p.Bound() {
+		if f.LocationID != nil && *f.LocationID != *p.LocationID {
+			return nil, nil
+		}
+		f.LocationID = p.LocationID
 	}
 	return s.store.ListBuilds(ctx, p.OrgID, f, page)
 }
@@ -465,7 +482,7 @@ func (s *Service) UpdateBuild(ctx context.Context, p Principal, id uuid.UUID, if
 	if patch.Notes != nil && utf8.RuneCountInString(*patch.Notes) > 10000 {
 		return Build{}, Invalid("/notes", "notes must be at most 10000 characters")
 	}
-	cur, err := s.store.GetBuild(ctx, p.OrgID, id)
+	cur, err := s.reachableBuild(ctx, p, id)
 	if err != nil {
 		return Build{}, err
 	}

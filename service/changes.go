@@ -73,10 +73,18 @@ type ChangeQuery struct {
 	Limit int
 	// Resources filters by resource name; empty means all.
 	Resources []string
+	// Location, when set, is the location the caller's key is held to:
+	// the feed then leaves out what happened at the organisation's other
+	// locations and shows only that location's levels in stock changes
+	// (see README.md, "Keys held to one location").
+	Location *uuid.UUID
 }
 
 // ListChanges returns the committed changes after q.After in a stable
-// order, and the cursor to continue from (q.After again when none).
+// order, and the cursor to continue from (q.After again when nothing new
+// has committed). With a filter (q.Resources, or a key held to one
+// location) a page may hold fewer than q.Limit changes, or none, while
+// more follow: the cursor then moves past what the page read.
 func (s *Service) ListChanges(ctx context.Context, p Principal, q ChangeQuery) ([]Change, Cursor, error) {
 	for i, r := range q.Resources {
 		known := false
@@ -90,13 +98,10 @@ func (s *Service) ListChanges(ctx context.Context, p Principal, q ChangeQuery) (
 	if q.Limit <= 0 {
 		q.Limit = DefaultPageSize
 	}
-	cs, err := s.store.ListChanges(ctx, p.OrgID, q)
+	q.Location = p.LocationID
+	cs, next, err := s.store.ListChanges(ctx, p.OrgID, q)
 	if err != nil {
 		return nil, q.After, err
-	}
-	next := q.After
-	if len(cs) > 0 {
-		next = cs[len(cs)-1].Cursor
 	}
 	return cs, next, nil
 }

@@ -1,6 +1,7 @@
 package service
 
 import (
+	"bytes"
 	"context"
 	"errors"
 	"fmt"
@@ -132,17 +133,34 @@ func (s *Service) CreateLocation(ctx context.Context, p Principal, in LocationIn
 
 // GetLocation reads one of the caller's locations.
 func (s *Service) GetLocation(ctx context.Context, p Principal, id uuid.UUID) (Location, error) {
+	if !p.Reaches(id) {
+		return Location{}, ErrNotFound
+	}
 	return s.store.GetLocation(ctx, p.OrgID, id)
 }
 
-// ListLocations lists the caller's locations in creation order.
+// ListLocations lists the caller's locations in creation order: a key held
+// to one location sees that one.
 func (s *Service) ListLocations(ctx context.Context, p Principal, page Page) ([]Location, error) {
+	if p.Bound() {
+		if bytes.Compare(p.LocationID[:], page.After[:]) <= 0 {
+			return nil, nil
+		}
+		l, err := s.store.GetLocation(ctx, p.OrgID, *p.LocationID)
+		if err != nil {
+			return nil, err
+		}
+		return []Location{l}, nil
+	}
 	return s.store.ListLocations(ctx, p.OrgID, page)
 }
 
 // UpdateLocation applies patch if ifMatch is the location's current ETag.
 func (s *Service) UpdateLocation(ctx context.Context, p Principal, id uuid.UUID, ifMatch string, patch LocationPatch) (Location, error) {
 	defer s.locations.forgetOrganisation(p.OrgID)
+	if !p.Reaches(id) {
+		return Location{}, ErrNotFound
+	}
 	if err := validateLocationFields(patch.Name, patch.Code, patch.Timezone, patch.Address, patch.TaxRatePPM); err != nil {
 		return Location{}, err
 	}

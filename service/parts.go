@@ -258,15 +258,33 @@ func checkIfMatch(ifMatch, current, what string) error {
 	return nil
 }
 
-// GetPartStock reads a part's stock at every location.
+// GetPartStock reads a part's stock at every location the caller reaches.
 func (s *Service) GetPartStock(ctx context.Context, p Principal, id uuid.UUID) (PartStock, error) {
-	return s.store.GetPartStock(ctx, p.OrgID, id)
+	st, err := s.store.GetPartStock(ctx, p.OrgID, id)
+	return reachable(p, st), err
+}
+
+// reachable is st with only the levels at locations p reaches.
+func reachable(p Principal, st PartStock) PartStock {
+	if !p.Bound() {
+		return st
+	}
+	levels := make([]StockLevel, 0, len(st.Levels))
+	for _, l := range st.Levels {
+		if p.Reaches(l.LocationID) {
+			levels = append(levels, l)
+		}
+	}
+	st.Levels = levels
+	return st
 }
 
 // maxStockQuantity bounds one stock level (absurd beyond).
 const maxStockQuantity = 1_000_000_000
 
-// PutPartStock replaces a part's stock levels if ifMatch is the stock's ETag.
+// PutPartStock replaces a part's stock levels if ifMatch is the stock's
+// ETag: at every location, or for a key held to one location at that one
+// (the others' levels stay; a level elsewhere is a location it cannot name).
 func (s *Service) PutPartStock(ctx context.Context, p Principal, id uuid.UUID, ifMatch string, levels []StockLevel) (PartStock, error) {
 	cur, err := s.store.GetPartStock(ctx, p.OrgID, id)
 	if err != nil {
@@ -295,7 +313,9 @@ func (s *Service) PutPartStock(ctx context.Context, p Principal, id uuid.UUID, i
 			errs = append(errs, Invalid(at, "the same location and length appear twice"))
 		}
 		seen[key] = true
-		if _, err := s.store.GetLocation(ctx, p.OrgID, l.LocationID); errors.Is(err, ErrNotFound) {
+		if !p.Reaches(l.LocationID) {
+			errs = append(errs, Unprocessable(at+"/location_id", "no such location in this organisation"))
+		} else if _, err := s.store.GetLocation(ctx, p.OrgID, l.LocationID); errors.Is(err, ErrNotFound) {
 			errs = append(errs, Unprocessable(at+"/location_id", "no such location in this organisation"))
 		} else if err != nil {
 			return PartStock{}, err
@@ -307,5 +327,6 @@ func (s *Service) PutPartStock(ctx context.Context, p Principal, id uuid.UUID, i
 	if err := checkIfMatch(ifMatch, cur.ETag(), "stock"); err != nil {
 		return PartStock{}, err
 	}
-	return s.store.PutPartStock(ctx, p.OrgID, id, cur.Version, levels)
+	st, err := s.store.PutPartStock(ctx, p.OrgID, id, cur.Version, levels, p.LocationID)
+	return reachable(p, st), err
 }

@@ -95,7 +95,7 @@ var ErrStockShort = fmt.Errorf("%w: not enough stock", ErrConflict)
 // list and the build location's tax rate; the build becomes quoted and any
 // earlier open quote of it is superseded.
 func (s *Service) CreateQuote(ctx context.Context, p Principal, buildID uuid.UUID) (Quote, error) {
-	b, err := s.store.GetBuild(ctx, p.OrgID, buildID)
+	b, err := s.reachableBuild(ctx, p, buildID)
 	if errors.Is(err, ErrNotFound) {
 		return Quote{}, Unprocessable("/build_id", "no such build in this organisation")
 	}
@@ -269,13 +269,22 @@ func mergeNeeds(ns []StockNeed) []StockNeed {
 
 // GetQuote reads one quote.
 func (s *Service) GetQuote(ctx context.Context, p Principal, id uuid.UUID) (Quote, error) {
-	return s.store.GetQuote(ctx, p.OrgID, id)
+	q, err := s.store.GetQuote(ctx, p.OrgID, id)
+	if err == nil && !p.Reaches(q.LocationID) {
+		return Quote{}, ErrNotFound
+	}
+	return q, err
 }
 
 // AcceptQuote orders the quote's build and takes its stock, atomically:
 // when any location is short the whole acceptance is refused (409) and
 // nothing changes; stock never goes negative.
 func (s *Service) AcceptQuote(ctx context.Context, p Principal, id uuid.UUID) (Quote, error) {
+	if p.Bound() { // a quote's location never changes: checked before, it holds
+		if _, err := s.GetQuote(ctx, p, id); err != nil {
+			return Quote{}, err
+		}
+	}
 	return s.store.AcceptQuote(ctx, p.OrgID, id, s.now().UTC())
 }
 

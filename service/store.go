@@ -34,17 +34,21 @@ type Store interface {
 	RevokeAPIKeyByPrefix(ctx context.Context, prefix string) (APIKey, error)
 
 	// ListChanges returns committed changes after q.After, only from
-	// transactions below the current snapshot's xmin; ErrCursorExpired when
+	// transactions below the current snapshot's xmin, and the cursor of
+	// the last change it read (q.After when none): past the changes it
+	// returns when a filter left the last ones out. ErrCursorExpired when
 	// q.After is older than the retained feed.
-	ListChanges(ctx context.Context, orgID uuid.UUID, q ChangeQuery) ([]Change, error)
+	ListChanges(ctx context.Context, orgID uuid.UUID, q ChangeQuery) ([]Change, Cursor, error)
 
 	CreatePart(ctx context.Context, p Part) error
 	GetPart(ctx context.Context, orgID, id uuid.UUID) (Part, error)
 	ListParts(ctx context.Context, orgID uuid.UUID, f PartFilter, p Page) ([]Part, error)
 	UpdatePart(ctx context.Context, orgID, id uuid.UUID, version int64, p PartPatch) (Part, error)
 	GetPartStock(ctx context.Context, orgID, partID uuid.UUID) (PartStock, error)
-	// PutPartStock replaces the levels when the stock is still at version.
-	PutPartStock(ctx context.Context, orgID, partID uuid.UUID, version int64, levels []StockLevel) (PartStock, error)
+	// PutPartStock replaces the levels when the stock is still at version:
+	// every location's, or only location's when it is not nil (levels then
+	// all lie there).
+	PutPartStock(ctx context.Context, orgID, partID uuid.UUID, version int64, levels []StockLevel, location *uuid.UUID) (PartStock, error)
 
 	// CreateBuild stores b and its change; b's location must be one of
 	// its organisation's (a foreign key refuses any other: ErrConflict).

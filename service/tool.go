@@ -87,10 +87,14 @@ func validateToolFields(label, serial, notes *string, unit, span *float64) error
 	return errors.Join(errs...)
 }
 
+// errOtherLocationsTool refuses a held key's change to a tool it may read
+// but that belongs to another location.
+var errOtherLocationsTool = fmt.Errorf("%w: this tool belongs to another location than the one this API key is held to", ErrForbidden)
+
 // checkLocation reports a location of another organisation, or none, as a
 // 422 naming the field.
 func (s *Service) checkLocation(ctx context.Context, p Principal, id uuid.UUID) error {
-	if _, err := s.store.GetLocation(ctx, p.OrgID, id); errors.Is(err, ErrNotFound) {
+	if _, err := s.store.GetLocation(ctx, p.OrgID, id); errors.Is(err, ErrNotFound) || (err == nil && !p.Reaches(id)) {
 		return Unprocessable("/location_id", "no location %s in this organisation", id)
 	} else if err != nil {
 		return err
@@ -148,6 +152,9 @@ func (s *Service) UpdateTool(ctx context.Context, p Principal, id uuid.UUID, ifM
 	if err != nil {
 		return Tool{}, err
 	}
+	if !p.Reaches(cur.LocationID) {
+		return Tool{}, errOtherLocationsTool
+	}
 	if ifMatch == "" {
 		return Tool{}, fmt.Errorf("%w: send If-Match with the tool's ETag", ErrPreconditionRequired)
 	}
@@ -203,6 +210,9 @@ func (s *Service) PublishCalibration(ctx context.Context, p Principal, toolID uu
 	tool, err := s.store.GetTool(ctx, p.OrgID, toolID)
 	if err != nil {
 		return Calibration{}, err
+	}
+	if !p.Reaches(tool.LocationID) {
+		return Calibration{}, errOtherLocationsTool
 	}
 	if in.Source == "" {
 		in.Source = tension.SourceMakerTable

@@ -45,6 +45,18 @@ type Principal struct {
 	Role       Role
 }
 
+// Bound reports whether the key is held to one location.
+func (p Principal) Bound() bool { return p.LocationID != nil }
+
+// Reaches reports whether the caller may see and change what is held at
+// location id: every location for a key of the whole organisation, its own
+// for a key held to one. To a held key the organisation's other locations,
+// and their builds, quotes, audits and stock levels, are as another
+// organisation's: ids in a path are 404, ids in a body are 422, lists
+// leave them out. The catalog, the price list, tools and calibrations are
+// the organisation's and readable by every key (see README.md).
+func (p Principal) Reaches(id uuid.UUID) bool { return p.LocationID == nil || *p.LocationID == id }
+
 // Organisation is a tenant: a shop or a chain of shops.
 type Organisation struct {
 	ID        uuid.UUID

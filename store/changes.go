@@ -86,30 +86,73 @@ func changeArgs(orgID uuid.UUID, c service.Change) ([8]any, error) {
 // ListChanges implements service.Store. Rows are served in (txid, seq)
 // order and only from transactions below the snapshot's xmin: every such
 // transaction has ended, so no row can later appear before the cursor.
-func (s *Store) ListChanges(ctx context.Context, orgID uuid.UUID, q service.ChangeQuery) (cs []service.Change, err error) {
+// next is the cursor of the last row read, shown or left out.
+func (s *Store) ListChanges(ctx context.Context, orgID uuid.UUID, q service.ChangeQuery) (cs []service.Change, next service.Cursor, err error) {
 	defer wrap(&err, "list changes")
+	next = q.After
 	if q.After != (service.Cursor{}) {
 		var expired bool
 		const qh = `SELECT EXISTS (SELECT 1 FROM change_horizons WHERE org_id = $1 AND (txid, seq) > ($2::xid8, $3))`
 		if err := s.db(ctx).QueryRow(ctx, qh, orgID, q.After.TxID, q.After.Seq).Scan(&expired); err != nil {
-			return nil, err
+			return nil, next, err
 		}
 		if expired {
-			return nil, service.ErrCursorExpired
+			return nil, next, service.ErrCursorExpired
 		}
 	}
 	var resources []string
 	if len(q.Resources) > 0 {
 		resources = q.Resources
 	}
-	rows, _ := s.db(ctx).Query(ctx, listChangesQuery, orgID, q.After.TxID, q.After.Seq, resources, q.Limit)
-	return pgx.CollectRows(rows, func(row pgx.CollectableRow) (service.Change, error) {
+	scan := q.Limit // every row read is shown
+	if resources != nil || q.Location != nil {
+		scan = max(q.Limit, FilteredFeedScan)
+	}
+	rows, _ := s.db(ctx).Query(ctx, listChangesQuery, orgID, q.After.TxID, q.After.Seq, resources, q.Limit, q.Location, scan)
+	defer rows.Close()
+	for rows.Next() {
 		var c service.Change
+		var shown bool
 		var data json.RawMessage
-		err := row.Scan(&c.Cursor.TxID, &c.Cursor.Seq, &c.Type, &c.ResourceID, &c.LocationID, &c.OccurredAt, &data)
+		if err := rows.Scan(&c.Cursor.TxID, &c.Cursor.Seq, &shown, &c.Type, &c.ResourceID, &c.LocationID, &c.OccurredAt, &data); err != nil {
+			return nil, next, err
+		}
+		next = c.Cursor
+		if !shown {
+			continue
+		}
+		if q.Location != nil && c.Type == "part.stock_changed" {
+			if data, err = stockAt(data, *q.Location); err != nil {
+				return nil, next, err
+			}
+		}
 		c.Data = data
-		return c, err
-	})
+		cs = append(cs, c)
+	}
+	return cs, next, rows.Err()
+}
+
+// FilteredFeedScan bounds the rows one page of a filtered feed reads (a
+// types filter, or a key held to one location): a page holds what those
+// rows show, so its cost is set by the page, not by how far away the next
+// change the filter lets through is.
+const FilteredFeedScan = 1000
+
+// stockAt is a stock change's data (a service.PartStock as recorded) with
+// only the levels at location: what a key held to it may read.
+func stockAt(data json.RawMessage, location uuid.UUID) (json.RawMessage, error) {
+	var st service.PartStock
+	if err := json.Unmarshal(data, &st); err != nil {
+		return nil, fmt.Errorf("stored stock change: %w", err)
+	}
+	levels := make([]service.StockLevel, 0, len(st.Levels))
+	for _, l := range st.Levels {
+		if l.LocationID == location {
+			levels = append(levels, l)
+		}
+	}
+	st.Levels = levels
+	return json.Marshal(st)
 }
 
 // listChangesQuery is ListChanges' statement. It selects, compares and
@@ -119,11 +162,31 @@ func (s *Store) ListChanges(ctx context.Context, orgID uuid.UUID, q service.Chan
 // no text round trip is needed. (It once selected txid::text under the
 // name txid: a bare ORDER BY txid then sorted the text, so 10000 came
 // before 9999 and a page boundary there skipped changes for good.)
-const listChangesQuery = `SELECT c.txid, c.seq, c.type, c.resource_id, c.location_id, c.occurred_at, c.data FROM changes c
-	  WHERE c.org_id = $1 AND (c.txid, c.seq) > ($2::xid8, $3)
-	    AND c.txid < pg_snapshot_xmin(pg_current_snapshot())
-	    AND ($4::text[] IS NULL OR split_part(c.type, '.', 1) = ANY ($4))
-	  ORDER BY c.txid, c.seq LIMIT $5`
+//
+// The inner query reads at most $7 rows in key order and judges each
+// (shown): $4 filters by resource; $6, when set, is the location a key is
+// held to, which leaves out the changes of the organisation's other
+// locations (their builds, quotes, audits, stock taken by their quotes,
+// the location records themselves) and keeps changes of no location (the
+// catalog, stock set for several locations, calibrations) and of tools
+// (every key reads every tool). The window counts the shown rows; its run
+// condition (n <= $5) stops the scan at the first shown row past the
+// page, so an unfiltered or dense page reads $5 rows and a sparse one at
+// most $7. Rows left out come back with shown false and no data: their
+// cursors still move the page's next_cursor past them.
+const listChangesQuery = `SELECT p.txid, p.seq, p.shown, p.type, p.resource_id, p.location_id, p.occurred_at,
+	    CASE WHEN p.shown THEN p.data END
+	  FROM (SELECT r.*, count(*) FILTER (WHERE r.shown) OVER (ORDER BY r.txid, r.seq ROWS UNBOUNDED PRECEDING) AS n
+	        FROM (SELECT c.txid, c.seq, c.type, c.resource_id, c.location_id, c.occurred_at, c.data,
+	                     ($4::text[] IS NULL OR split_part(c.type, '.', 1) = ANY ($4))
+	                     AND ($6::uuid IS NULL OR c.location_id IS NULL OR c.location_id = $6
+	                          OR split_part(c.type, '.', 1) IN ('tool', 'calibration')) AS shown
+	              FROM changes c
+	              WHERE c.org_id = $1 AND (c.txid, c.seq) > ($2::xid8, $3)
+	                AND c.txid < pg_snapshot_xmin(pg_current_snapshot())
+	              ORDER BY c.txid, c.seq LIMIT $7) r) p
+	  WHERE p.n <= $5
+	  ORDER BY p.txid, p.seq`
 
 // PruneChanges deletes each organisation's changes older than the
 // retention and moves its horizon, so older cursors get 410.

@@ -74,7 +74,7 @@ func TestChangeFeedAcrossDigitBoundaries(t *testing.T) {
 				if err != nil {
 					t.Fatal(err)
 				}
-				cs, err := st.ListChanges(ctx, org, service.ChangeQuery{After: after, Limit: limit})
+				cs, _, err := st.ListChanges(ctx, org, service.ChangeQuery{After: after, Limit: limit})
 				if err != nil {
 					t.Fatal(err)
 				}
@@ -143,7 +143,9 @@ func advanceXIDPast(t *testing.T, pool *pgxpool.Pool, x uint64) {
 
 // TestChangeFeedFirstPageUsesPrimaryKey: the feed's pages come from the
 // primary key (org_id, txid, seq) in its own order, with no sort, so a
-// page costs the same whatever the table holds. The statement is the
+// page costs the same whatever the table holds; a filtered page (types, a
+// held key's location) reads its page when the filter lets most rows
+// through and at most store.FilteredFeedScan rows when it lets none. The statement is the
 // store's own; the data is 20,000 changes of one organisation among three,
 // analysed so the planner knows the table's size. A text-ordered feed
 // cannot use the index and shows a Sort here.
@@ -152,30 +154,46 @@ func TestChangeFeedFirstPageUsesPrimaryKey(t *testing.T) {
 	pool := storetest.Pool(t)
 	st := store.New(pool)
 	orgs := []uuid.UUID{newOrg(t, st, "a"), newOrg(t, st, "b"), newOrg(t, st, "c")}
+	buildsAt := uuid.New()
 	for i, org := range orgs {
 		n := 2000
 		if i == 1 {
 			n = 20_000
 		}
-		if _, err := pool.Exec(ctx, `INSERT INTO changes (org_id, txid, type, resource_id, data)
-		    SELECT $1, (1000 + g)::text::xid8, 'build.created', gen_random_uuid(), '{}' FROM generate_series(1, $2) g`, org, n); err != nil {
+		// Every build at one location (a key held to another sees none).
+		if _, err := pool.Exec(ctx, `INSERT INTO changes (org_id, txid, type, resource_id, location_id, data)
+		    SELECT $1, (1000 + g)::text::xid8, 'build.created', gen_random_uuid(), $3, '{}' FROM generate_series(1, $2) g`, org, n, buildsAt); err != nil {
 			t.Fatal(err)
 		}
 	}
 	if _, err := pool.Exec(ctx, `ANALYZE changes`); err != nil {
 		t.Fatal(err)
 	}
+	held := uuid.New()
+	const limit = 100
 	for _, tc := range []struct {
 		name      string
 		after     service.Cursor
 		resources []string
+		location  *uuid.UUID
+		// most rows a page may read: the page and the two rows the window
+		// looks at past it, or the filtered scan
+		most int
 	}{
-		{"first page", service.Cursor{}, nil},
-		{"middle", service.Cursor{TxID: 11_000, Seq: 0}, nil},
+		{"first page", service.Cursor{}, nil, nil, limit},
+		{"middle", service.Cursor{TxID: 11_000, Seq: 0}, nil, nil, limit},
+		{"types, none match", service.Cursor{}, []string{"part"}, nil, store.FilteredFeedScan},
+		{"types, all match", service.Cursor{TxID: 11_000, Seq: 0}, []string{"build"}, nil, limit + 2},
+		{"held key, none of its location", service.Cursor{}, nil, &held, store.FilteredFeedScan},
+		{"held key at the builds' location", service.Cursor{TxID: 11_000, Seq: 0}, []string{"build"}, &buildsAt, limit + 2},
 	} {
+		scan := limit
+		if tc.resources != nil || tc.location != nil {
+			scan = max(limit, store.FilteredFeedScan)
+		}
 		var plan []map[string]any
-		err := pool.QueryRow(ctx, `EXPLAIN (FORMAT JSON) `+store.ListChangesQuery,
-			orgs[1], tc.after.TxID, tc.after.Seq, tc.resources, 100).Scan(&plan)
+		err := pool.QueryRow(ctx, `EXPLAIN (ANALYZE, FORMAT JSON) `+store.ListChangesQuery,
+			orgs[1], tc.after.TxID, tc.after.Seq, tc.resources, limit, tc.location, scan).Scan(&plan)
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -187,6 +205,9 @@ func TestChangeFeedFirstPageUsesPrimaryKey(t *testing.T) {
 				t.Errorf("%s: plan sorts (%v): the order is not the primary key's\n%v", tc.name, n["Sort Key"], plan)
 			case "Index Scan", "Index Only Scan":
 				usesPK = usesPK || n["Index Name"] == "changes_pkey"
+				if read := int(n["Actual Rows"].(float64)); read > tc.most {
+					t.Errorf("%s: the page read %d rows, want at most %d", tc.name, read, tc.most)
+				}
 			}
 		}
 		if !usesPK {

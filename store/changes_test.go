@@ -73,7 +73,7 @@ func TestChangeFeedMissesNothing(t *testing.T) {
 			break
 		}
 		for {
-			cs, err := st.ListChanges(ctx, org, service.ChangeQuery{After: cur, Limit: 7})
+			cs, _, err := st.ListChanges(ctx, org, service.ChangeQuery{After: cur, Limit: 7})
 			if err != nil {
 				t.Fatal(err)
 			}
@@ -138,7 +138,7 @@ func TestChangeFeedLateCommit(t *testing.T) {
 	if err := pool.QueryRow(ctx, `SELECT seq, data::text FROM changes WHERE org_id = $1 ORDER BY seq DESC LIMIT 1`, org).Scan(&naiveLast, &data); err != nil || data != `"B"` {
 		t.Fatalf("naive reader: %v %q", err, data)
 	}
-	cs, err := st.ListChanges(ctx, org, service.ChangeQuery{Limit: 10})
+	cs, _, err := st.ListChanges(ctx, org, service.ChangeQuery{Limit: 10})
 	if err != nil || len(cs) != 0 {
 		t.Fatalf("feed served %d changes while A was open (err %v), want 0", len(cs), err)
 	}
@@ -155,7 +155,7 @@ func TestChangeFeedLateCommit(t *testing.T) {
 	var got []string
 	for deadline := time.Now().Add(10 * time.Second); len(got) < 2 && time.Now().Before(deadline); time.Sleep(10 * time.Millisecond) {
 		got = got[:0]
-		cs, err := st.ListChanges(ctx, org, service.ChangeQuery{Limit: 10})
+		cs, _, err := st.ListChanges(ctx, org, service.ChangeQuery{Limit: 10})
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -186,11 +186,11 @@ func TestChangeCursorExpires(t *testing.T) {
 	if n, err := st.PruneChanges(ctx, 30*24*3600); err != nil || n != 3 {
 		t.Fatalf("pruned %d %v", n, err)
 	}
-	if _, err := st.ListChanges(ctx, org, service.ChangeQuery{After: first, Limit: 10}); err == nil || !errors.Is(err, service.ErrCursorExpired) {
+	if _, _, err := st.ListChanges(ctx, org, service.ChangeQuery{After: first, Limit: 10}); err == nil || !errors.Is(err, service.ErrCursorExpired) {
 		t.Fatalf("expired cursor: %v", err)
 	}
 	// The cursor of the last pruned change is still good: nothing after it was lost.
-	if _, err := st.ListChanges(ctx, org, service.ChangeQuery{After: cs[2].Cursor, Limit: 10}); err != nil {
+	if _, _, err := st.ListChanges(ctx, org, service.ChangeQuery{After: cs[2].Cursor, Limit: 10}); err != nil {
 		t.Fatalf("cursor at the horizon: %v", err)
 	}
 }
@@ -209,7 +209,7 @@ func waitChanges(t *testing.T, st *store.Store, org uuid.UUID, n int) []service.
 	t.Helper()
 	deadline := time.Now().Add(20 * time.Second)
 	for {
-		cs, err := st.ListChanges(context.Background(), org, service.ChangeQuery{Limit: 100})
+		cs, _, err := st.ListChanges(context.Background(), org, service.ChangeQuery{Limit: 100})
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -220,5 +220,83 @@ func waitChanges(t *testing.T, st *store.Store, org uuid.UUID, n int) []service.
 			t.Fatalf("feed served %d changes, want %d", len(cs), n)
 		}
 		time.Sleep(20 * time.Millisecond)
+	}
+}
+
+// TestFilteredFeedWalksPastWhatItLeavesOut: a filter (a resource type, a
+// key held to one location) that lets through a few changes among many
+// more than one page may read still yields each of them exactly once, in
+// order, when the reader follows the returned cursor until it stops
+// moving; pages in between may be empty, with the cursor moved past what
+// they read, and at the end the cursor stays where it is.
+func TestFilteredFeedWalksPastWhatItLeavesOut(t *testing.T) {
+	ctx := context.Background()
+	pool := storetest.Pool(t)
+	st := store.New(pool)
+	org := newOrg(t, st, "sparse")
+	here, there := uuid.New(), uuid.New()
+	n := 3*store.FilteredFeedScan + 500
+	// One transaction per change is not needed: rows of one transaction
+	// are ordered by seq. Builds happen "there"; every 1111th change is a
+	// part (no location) and every 1300th a build "here".
+	if _, err := pool.Exec(ctx, `INSERT INTO changes (org_id, type, resource_id, location_id, data)
+	    SELECT $1,
+	           CASE WHEN g % 1111 = 0 THEN 'part.created' ELSE 'build.created' END,
+	           gen_random_uuid(),
+	           CASE WHEN g % 1111 = 0 THEN NULL WHEN g % 1300 = 0 THEN $3::uuid ELSE $4::uuid END,
+	           json_build_object('g', g)
+	    FROM generate_series(1, $2) g`, org, n, here, there); err != nil {
+		t.Fatal(err)
+	}
+	walk := func(q service.ChangeQuery) (gs []int, empty int) {
+		for {
+			cs, next, err := st.ListChanges(ctx, org, q)
+			if err != nil {
+				t.Fatal(err)
+			}
+			if len(cs) == 0 {
+				empty++
+			}
+			for _, c := range cs {
+				var d struct{ G int }
+				if err := json.Unmarshal(c.Data.(json.RawMessage), &d); err != nil {
+					t.Fatal(err)
+				}
+				gs = append(gs, d.G)
+			}
+			if next == q.After {
+				if len(cs) != 0 {
+					t.Fatalf("changes came with an unmoved cursor")
+				}
+				return gs, empty
+			}
+			q.After = next
+		}
+	}
+	var wantParts, wantHeld []int
+	for g := 1; g <= n; g++ {
+		if g%1111 == 0 {
+			wantParts = append(wantParts, g)
+		}
+		if g%1111 == 0 || g%1300 == 0 {
+			wantHeld = append(wantHeld, g)
+		}
+	}
+	parts, empty := walk(service.ChangeQuery{Limit: 2, Resources: []string{"part"}})
+	if want := wantParts; fmt.Sprint(parts) != fmt.Sprint(want) {
+		t.Errorf("parts %v, want %v", parts, want)
+	}
+	if empty < 2 {
+		t.Errorf("%d empty pages: the scan was not bounded", empty)
+	}
+	// Held "here": its builds and the parts, nothing "there".
+	held, _ := walk(service.ChangeQuery{Limit: 2, Location: &here})
+	if want := wantHeld; fmt.Sprint(held) != fmt.Sprint(want) || len(want) < 5 {
+		t.Errorf("held key saw %v, want %v", held, want)
+	}
+	// Unfiltered pages are full until the end.
+	all, _ := walk(service.ChangeQuery{Limit: 500})
+	if len(all) != n {
+		t.Errorf("the whole feed has %d changes, want %d", len(all), n)
 	}
 }

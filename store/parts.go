@@ -94,8 +94,9 @@ func (s *Store) partStock(ctx context.Context, q querier, orgID, partID uuid.UUI
 	return st, err
 }
 
-// PutPartStock replaces the part's stock levels when still at version.
-func (s *Store) PutPartStock(ctx context.Context, orgID, partID uuid.UUID, version int64, levels []service.StockLevel) (st service.PartStock, err error) {
+// PutPartStock replaces the part's stock levels when still at version:
+// all of them, or when location is set only that location's.
+func (s *Store) PutPartStock(ctx context.Context, orgID, partID uuid.UUID, version int64, levels []service.StockLevel, location *uuid.UUID) (st service.PartStock, err error) {
 	defer wrap(&err, "put part stock")
 	err = s.inTx(ctx, func(tx pgx.Tx) error {
 		tag, err := tx.Exec(ctx, `UPDATE parts SET stock_version = stock_version + 1 WHERE org_id = $1 AND id = $2 AND stock_version = $3`, orgID, partID, version)
@@ -105,7 +106,8 @@ func (s *Store) PutPartStock(ctx context.Context, orgID, partID uuid.UUID, versi
 		if tag.RowsAffected() != 1 {
 			return service.ErrPreconditionFailed
 		}
-		if _, err := tx.Exec(ctx, `DELETE FROM part_stock WHERE org_id = $1 AND part_id = $2`, orgID, partID); err != nil {
+		const del = `DELETE FROM part_stock WHERE org_id = $1 AND part_id = $2 AND ($3::uuid IS NULL OR location_id = $3)`
+		if _, err := tx.Exec(ctx, del, orgID, partID, location); err != nil {
 			return err
 		}
 		for _, l := range levels {
@@ -117,7 +119,9 @@ func (s *Store) PutPartStock(ctx context.Context, orgID, partID uuid.UUID, versi
 		if st, err = s.partStock(ctx, tx, orgID, partID); err != nil {
 			return err
 		}
-		return recordChange(ctx, tx, orgID, service.Change{Type: "part.stock_changed", ResourceID: partID, Data: st})
+		// Levels set by a key held to one location are that location's
+		// change; others may touch every location and name none.
+		return recordChange(ctx, tx, orgID, service.Change{Type: "part.stock_changed", ResourceID: partID, LocationID: location, Data: st})
 	})
 	return st, err
 }
