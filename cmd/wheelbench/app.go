@@ -5,6 +5,7 @@ import (
 	"errors"
 	"fmt"
 	"log/slog"
+	"math"
 	"net"
 	"net/http"
 	"runtime/debug"
@@ -59,6 +60,15 @@ func serve(ctx context.Context, cfg config, getenv func(string) string, log *slo
 	if getenv("GOGC") == "" {
 		debug.SetGCPercent(serveGCPercent)
 		log.Info("garbage collection target set (GOGC unset)", slog.Int("gc_percent", serveGCPercent))
+	}
+	// The heap may grow to (1 + GOGC/100) times the live data; in a
+	// container with a memory limit, GOMEMLIMIT below it keeps that growth
+	// from reaching the limit (deploy/kubernetes/deployment.yaml). Logged
+	// so an operator can see which applies.
+	if limit := debug.SetMemoryLimit(-1); limit == math.MaxInt64 {
+		log.Info("no Go memory limit (GOMEMLIMIT unset): in a container with a memory limit, set it to about 90 % of that")
+	} else {
+		log.Info("Go memory limit", slog.Int64("bytes", limit))
 	}
 	a, err := openApp(ctx, cfg, getenv, log)
 	if err != nil {
