@@ -53,6 +53,9 @@ var wheelSeeds = []string{
 	`{"spoke": {"measured_section": "section_\u0031"}}`, `{"spoke": {"measured_section": "a\u0000"}}`,
 	`{"spoke": {"sections": [{"profile": null}]}}`, `{"spoke": {"sections": [{"length_mm": 1, "Profile": "oval"}]}}`,
 	`{"spoke": {"profile": "bladed", "width_mm": 2.3, "thickness_mm": 1.2}}`, `{"spoke": {"thread": {"tpi": 56}}}`,
+	`{"spoke_count":24,"include_lacing":true,"hub":{"kind":"cargo","brake":"rotor","holes":24,"driven":true,"left":{"pcd_mm":44,"center_to_flange_mm":35,"spokes":8},"right":{"pcd_mm":44,"center_to_flange_mm":20,"spokes":16}},"rim":{"erd_mm":590},"crosses":{"left":1,"right":2}}`,
+	`{"spoke_count":24,"hub":{"type":"straight_pull","left":{"pcd_mm":50,"center_to_flange_mm":28,"exit":"angled","exit_angle_deg":60},"right":{"pcd_mm":50,"center_to_flange_mm":24,"exit":"tangential"}},"rim":{"erd_mm":600},"crosses":{"left":2,"right":0},"spoke":{"profile":"bladed","width_mm":2.3,"thickness_mm":0.9,"diameter_mm":2,"measured_section":"body","sections":[{"length_mm":24,"diameter_mm":2},{"length_mm":5,"profile":"oval","width_mm":2.1,"thickness_mm":1.5}]}}`,
+	`{"include_lacing":1}`, `{"hub":{"left":{"spokes":1.5}}}`, `{"spoke":{"profile":null}}`, `{"hub":{"Kind":"motor"}}`,
 }
 
 // sharedMembersSeed sets every hub, flange and spoke member the fast path

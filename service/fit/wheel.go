@@ -262,35 +262,42 @@ func (j *judge) nippleAngle(w geometry.Wheel, res *geometry.Result, k int, opt O
 func (j *judge) stress(w geometry.Wheel, f *geometry.Facts, high float64, opt Options) {
 	sp := f.Spoke
 	wire, which := sp.MinArea()
-	area, where := wire, "the "+sectionWords(w.Spoke, which)
-	var assumed, notes []string
-	tpi, major := 0.0, 0.0
+	area, threadGoverns := wire, false
+	tpi, major, typicalTPI := 0.0, 0.0, false
 	if th := w.Spoke.Thread; th != nil && th.TPI != nil {
 		tpi = *th.TPI
 		if th.DiameterMM != nil {
 			major = *th.DiameterMM
 		}
 	} else if typ, ok := spoke.TypicalFor(sp.Gauge); ok && typ.ThreadTPI > 0 {
-		tpi = typ.ThreadTPI
-		assumed = append(assumed, "spoke.thread")
-		notes = append(notes, fmt.Sprintf("the thread is taken as rolled on the %.4g mm end at %.3g TPI (typical, not given)", sp.EndMM, tpi))
-	} else {
-		assumed = append(assumed, "spoke.thread")
-		notes = append(notes, "the thread is not judged (no pitch given and none is typical for this size)")
+		tpi, typicalTPI = typ.ThreadTPI, true
 	}
 	if tpi > 0 {
 		if ta, ok := spoke.ThreadStressArea(sp.EndMM, major, tpi); ok && ta < area {
-			area, where = ta, "the thread's stress area"
+			area, threadGoverns = ta, true
 		}
-	}
-	if sp.MaterialAssumed {
-		assumed = append(assumed, "spoke.material")
-		notes = append(notes, "the material as stainless steel (not given)")
 	}
 	stress := high / area // N/mm² = MPa
 	allowed := sp.Material.UTSMPa / opt.SpokeSafetyFactor
 	if stress <= allowed+eps {
-		return
+		return // the common case builds no message
+	}
+	where := "the " + sectionWords(w.Spoke, which)
+	if threadGoverns {
+		where = "the thread's stress area"
+	}
+	var assumed, notes []string
+	switch {
+	case typicalTPI:
+		assumed = append(assumed, "spoke.thread")
+		notes = append(notes, fmt.Sprintf("the thread is taken as rolled on the %.4g mm end at %.3g TPI (typical, not given)", sp.EndMM, tpi))
+	case tpi == 0:
+		assumed = append(assumed, "spoke.thread")
+		notes = append(notes, "the thread is not judged (no pitch given and none is typical for this size)")
+	}
+	if sp.MaterialAssumed {
+		assumed = append(assumed, "spoke.material")
+		notes = append(notes, "the material as stainless steel (not given)")
 	}
 	msg := fmt.Sprintf("At %.4g N the spoke's weakest section (%s, %.4g mm²) carries %.4g MPa, above %.4g MPa (%s tensile strength %.4g MPa ÷ safety factor %.3g).",
 		round4(high), where, round4(area), round4(stress), round4(allowed), strings.ReplaceAll(sp.Material.Name, "_", " "), sp.Material.UTSMPa, opt.SpokeSafetyFactor)
@@ -322,14 +329,18 @@ type threads struct {
 	spokeThreadMM          float64 // spoke thread length
 	nippleTopMM, nippleLow float64 // nipple internal thread: [nippleLow, nippleTopMM]
 	sizeMM                 float64 // thread size, for the engagement needed
-	assumed                []string
+	// assumed[:nAssumed] are the typical values used (a fixed array, so a
+	// threads on the stack stays there).
+	assumed  [3]string
+	nAssumed int
 }
 
+func (t *threads) assume(path string) { t.assumed[t.nAssumed] = path; t.nAssumed++ }
+
 // threadsOf resolves the thread facts, typical values filling gaps.
-func threadsOf(w geometry.Wheel, f *geometry.Facts, nip *Nipple, opt Options) (threads, bool) {
-	var t threads
+func threadsOf(t *threads, w geometry.Wheel, f *geometry.Facts, nip *Nipple, opt Options) bool {
 	if !f.HasSpoke {
-		return t, false
+		return false
 	}
 	t.sizeMM = f.Spoke.EndMM
 	typ, haveTyp := spoke.TypicalFor(f.Spoke.Gauge)
@@ -338,28 +349,28 @@ func threadsOf(w geometry.Wheel, f *geometry.Facts, nip *Nipple, opt Options) (t
 		t.spokeThreadMM = *w.Spoke.ThreadLengthMM
 	case haveTyp:
 		t.spokeThreadMM = typ.ThreadLengthMM
-		t.assumed = append(t.assumed, "spoke.thread_length_mm")
+		t.assume("spoke.thread_length_mm")
 	default:
-		return t, false
+		return false
 	}
 	start, length := typicalNippleThreadStartMM, typicalNippleThreadLengthRatio*opt.TypicalNippleLengthMM
 	if nip == nil {
-		t.assumed = append(t.assumed, "nipple")
+		t.assume("nipple")
 	} else {
 		length = typicalNippleThreadLengthRatio * nip.LengthMM
 		if nip.ThreadStartMM != nil {
 			start = *nip.ThreadStartMM
 		} else {
-			t.assumed = append(t.assumed, "nipple.thread_start_mm")
+			t.assume("nipple.thread_start_mm")
 		}
 		if nip.ThreadLengthMM != nil {
 			length = *nip.ThreadLengthMM
 		} else {
-			t.assumed = append(t.assumed, "nipple.thread_length_mm")
+			t.assume("nipple.thread_length_mm")
 		}
 	}
 	t.nippleTopMM, t.nippleLow = -start, -start-length
-	return t, true
+	return true
 }
 
 // Typical nipple internal thread, from memory: the thread starts about 2 mm
@@ -385,17 +396,15 @@ func (t threads) bottomsAt() float64 { return t.spokeThreadMM + t.nippleLow }
 // reaching the nipple's thread. A remedy names the length to use.
 func (j *judge) spokeEnds(w geometry.Wheel, res *geometry.Result, k int, nip *Nipple, opt Options) {
 	f := &res.Facts
-	side := [2]*geometry.SideResult{&res.Left, &res.Right}[k]
-	name := sideNames[k]
-	t, ok := threadsOf(w, f, nip, opt)
-	if !ok {
+	side := &res.Left
+	if k == 1 {
+		side = &res.Right
+	}
+	var t threads
+	if !threadsOf(&t, w, f, nip, opt) {
 		return
 	}
 	required := opt.MinThreadEngagementDiameters * t.sizeMM
-	// The best end position: flush with the nipple head, or lower if the
-	// spoke would bottom there.
-	best := math.Min(0, t.bottomsAt())
-	feasible := t.engagedMM(best) >= required-eps && best <= opt.MaxSpokeEndPastNippleMM+eps
 	for _, g := range side.LengthGroups {
 		e, assumedEnd := 0.0, true
 		if g.SpokeEndMM != nil {
@@ -403,85 +412,97 @@ func (j *judge) spokeEnds(w geometry.Wheel, res *geometry.Result, k int, nip *Ni
 		} else if f.Stock != nil {
 			continue
 		}
-		assumed := slices.Clone(t.assumed)
-		if assumedEnd {
-			assumed = append(assumed, "geometry."+name+".spoke_end_mm")
+		if t.engagedMM(e) >= required-eps && e <= t.bottomsAt()+eps && e <= opt.MaxSpokeEndPastNippleMM+eps {
+			continue // nothing to report: build no message
 		}
-		engaged := t.engagedMM(e)
-		stock := 0.0
-		if g.StockLengthMM != nil {
-			stock = *g.StockLengthMM
+		j.spokeEnd(f, &t, g, e, assumedEnd, required, sideNames[k], nip != nil, opt)
+	}
+}
+
+// spokeEnd reports one length group whose end breaks a thread rule.
+func (j *judge) spokeEnd(f *geometry.Facts, t *threads, g geometry.LengthGroup, e float64, assumedEnd bool, required float64, name string, withChanges bool, opt Options) {
+	// The best end position: flush with the nipple head, or lower if the
+	// spoke would bottom there.
+	best := math.Min(0, t.bottomsAt())
+	feasible := t.engagedMM(best) >= required-eps && best <= opt.MaxSpokeEndPastNippleMM+eps
+	assumed := slices.Clone(t.assumed[:t.nAssumed])
+	if assumedEnd {
+		assumed = append(assumed, "geometry."+name+".spoke_end_mm")
+	}
+	engaged := t.engagedMM(e)
+	stock := 0.0
+	if g.StockLengthMM != nil {
+		stock = *g.StockLengthMM
+	}
+	// The length that brings the end nearest best, from what can be had.
+	to, by := 0.0, best-e
+	if stock > 0 {
+		to = nearestAvailable(f.Stock, stock+by, stock)
+		by = to - stock
+	}
+	vals := func() map[string]float64 {
+		v := map[string]float64{
+			"spoke_end_mm": round4(e), "engaged_mm": round4(engaged), "required_engagement_mm": round4(required),
+			"spoke_thread_length_mm": t.spokeThreadMM, "nipple_thread_start_mm": -t.nippleTopMM,
+			"nipple_thread_length_mm": round4(t.nippleTopMM - t.nippleLow), "max_past_nipple_mm": opt.MaxSpokeEndPastNippleMM,
 		}
-		// The length that brings the end nearest best, from what can be had.
-		to, by := 0.0, best-e
 		if stock > 0 {
-			to = nearestAvailable(f.Stock, stock+by, stock)
-			by = to - stock
-		}
-		vals := func() map[string]float64 {
-			v := map[string]float64{
-				"spoke_end_mm": round4(e), "engaged_mm": round4(engaged), "required_engagement_mm": round4(required),
-				"spoke_thread_length_mm": t.spokeThreadMM, "nipple_thread_start_mm": -t.nippleTopMM,
-				"nipple_thread_length_mm": round4(t.nippleTopMM - t.nippleLow), "max_past_nipple_mm": opt.MaxSpokeEndPastNippleMM,
+			v["stock_length_mm"] = stock
+			if to != stock {
+				v["suggested_length_mm"] = to
 			}
-			if stock > 0 {
-				v["stock_length_mm"] = stock
-				if to != stock {
-					v["suggested_length_mm"] = to
-				}
-			}
-			return v
 		}
-		remedy := func(longer bool) string {
-			switch {
-			case !feasible:
-				return fmt.Sprintf("No spoke length gives %.3g mm of thread engagement with these spokes and nipples: use longer nipples or spokes with a longer thread.", required)
-			case stock > 0 && to != stock:
-				return fmt.Sprintf("Use %.4g mm spokes on the %s side instead of %.4g mm: the end then sits about %.2f mm from the nipple head.", to, name, stock, round4(e+by))
-			case stock > 0:
-				return fmt.Sprintf("No available length ends better: cut the %s spokes %.2f mm %s.", name, math.Abs(best-e), map[bool]string{true: "longer", false: "shorter"}[longer])
-			}
-			return fmt.Sprintf("Use %s spokes on the %s side, %.3g mm %s, to bring the spoke end to %.3g mm from the nipple head.",
-				map[bool]string{true: "longer", false: "shorter"}[longer], name, math.Abs(best-e), map[bool]string{true: "longer", false: "shorter"}[longer], round4(best))
+		return v
+	}
+	remedy := func(longer bool) string {
+		switch {
+		case !feasible:
+			return fmt.Sprintf("No spoke length gives %.3g mm of thread engagement with these spokes and nipples: use longer nipples or spokes with a longer thread.", required)
+		case stock > 0 && to != stock:
+			return fmt.Sprintf("Use %.4g mm spokes on the %s side instead of %.4g mm: the end then sits about %.2f mm from the nipple head.", to, name, stock, round4(e+by))
+		case stock > 0:
+			return fmt.Sprintf("No available length ends better: cut the %s spokes %.2f mm %s.", name, math.Abs(best-e), map[bool]string{true: "longer", false: "shorter"}[longer])
 		}
-		fixable := feasible && by != 0 && (stock == 0 || to != stock)
-		var fired []Finding
-		if engaged < required-eps {
-			fired = append(fired, Finding{Code: CodeThreadEngagementShort, Side: name,
-				Message: fmt.Sprintf("Only %.3g mm of the %s spoke thread engages the nipple (needs %.3g mm, %.3g thread diameters).",
-					engaged, name, required, opt.MinThreadEngagementDiameters),
-				Remedy: remedy(true), Values: vals(), Assumed: assumed, FixedByChange: fixable && by > 0})
-		}
-		if e > t.bottomsAt()+eps {
-			fired = append(fired, Finding{Code: CodeSpokeThreadBottoms, Side: name,
-				Message: fmt.Sprintf("The %s spoke's unthreaded body reaches the nipple's thread: the nipple will bind before the spoke is tight.", name),
-				Remedy:  remedy(false), Values: vals(), Assumed: assumed, FixedByChange: fixable && by < 0})
-		}
-		if e > opt.MaxSpokeEndPastNippleMM+eps {
-			fired = append(fired, Finding{Code: CodeSpokeProtrudesPastNipple, Side: name,
-				Message: fmt.Sprintf("The %s spoke ends %.3g mm past the nipple head (at most %.3g mm): it can cut the rim tape or tube.",
-					name, round4(e), opt.MaxSpokeEndPastNippleMM),
-				Remedy: remedy(false), Values: vals(), Assumed: assumed, FixedByChange: fixable && by < 0})
-			j.caution("A spoke end that stands past the nipple head can cut through the rim tape and puncture the tube; use the shorter length the finding names.")
-		}
+		return fmt.Sprintf("Use %s spokes on the %s side, %.3g mm %s, to bring the spoke end to %.3g mm from the nipple head.",
+			map[bool]string{true: "longer", false: "shorter"}[longer], name, math.Abs(best-e), map[bool]string{true: "longer", false: "shorter"}[longer], round4(best))
+	}
+	fixable := feasible && by != 0 && (stock == 0 || to != stock)
+	var fired []Finding
+	if engaged < required-eps {
+		fired = append(fired, Finding{Code: CodeThreadEngagementShort, Side: name,
+			Message: fmt.Sprintf("Only %.3g mm of the %s spoke thread engages the nipple (needs %.3g mm, %.3g thread diameters).",
+				engaged, name, required, opt.MinThreadEngagementDiameters),
+			Remedy: remedy(true), Values: vals(), Assumed: assumed, FixedByChange: fixable && by > 0})
+	}
+	if e > t.bottomsAt()+eps {
+		fired = append(fired, Finding{Code: CodeSpokeThreadBottoms, Side: name,
+			Message: fmt.Sprintf("The %s spoke's unthreaded body reaches the nipple's thread: the nipple will bind before the spoke is tight.", name),
+			Remedy:  remedy(false), Values: vals(), Assumed: assumed, FixedByChange: fixable && by < 0})
+	}
+	if e > opt.MaxSpokeEndPastNippleMM+eps {
+		fired = append(fired, Finding{Code: CodeSpokeProtrudesPastNipple, Side: name,
+			Message: fmt.Sprintf("The %s spoke ends %.3g mm past the nipple head (at most %.3g mm): it can cut the rim tape or tube.",
+				name, round4(e), opt.MaxSpokeEndPastNippleMM),
+			Remedy: remedy(false), Values: vals(), Assumed: assumed, FixedByChange: fixable && by < 0})
+		j.caution("A spoke end that stands past the nipple head can cut through the rim tape and puncture the tube; use the shorter length the finding names.")
+	}
+	for _, fd := range fired {
+		j.add(fd)
+	}
+	if withChanges && len(fired) > 0 && fixable {
+		var fixes []string
 		for _, fd := range fired {
-			j.add(fd)
+			if fd.FixedByChange {
+				fixes = append(fixes, fd.Code)
+			}
 		}
-		if nip != nil && len(fired) > 0 && fixable {
-			var fixes []string
-			for _, fd := range fired {
-				if fd.FixedByChange {
-					fixes = append(fixes, fd.Code)
-				}
+		if len(fixes) > 0 {
+			c := Change{Kind: ChangeSpokeLength, Side: name, Count: g.Count, ByMM: ptr(round4(by)),
+				Reason: fmt.Sprintf("spoke end %.3g mm from the nipple head", round4(e)), Fixes: fixes}
+			if stock > 0 {
+				c.ToMM = ptr(to)
 			}
-			if len(fixes) > 0 {
-				c := Change{Kind: ChangeSpokeLength, Side: name, Count: g.Count, ByMM: ptr(round4(by)),
-					Reason: fmt.Sprintf("spoke end %.3g mm from the nipple head", round4(e)), Fixes: fixes}
-				if stock > 0 {
-					c.ToMM = ptr(to)
-				}
-				j.cs = append(j.cs, c)
-			}
+			j.cs = append(j.cs, c)
 		}
 	}
 }

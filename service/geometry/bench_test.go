@@ -32,3 +32,37 @@ func BenchmarkComputeGeometryOnly(b *testing.B) {
 		sink = r
 	}
 }
+
+// BenchmarkComputeWithPlan: the contract wheel with its full lacing plan
+// (one entry per spoke).
+func BenchmarkComputeWithPlan(b *testing.B) {
+	w := contractWheel()
+	w.IncludeLacing = true
+	b.ReportAllocs()
+	for b.Loop() {
+		r, err := Compute(w)
+		if err != nil {
+			b.Fatal(err)
+		}
+		sink = r
+	}
+}
+
+// BenchmarkComputeUneven: a 2:1 wheel, whose plan (and clocking search) is
+// always computed.
+func BenchmarkComputeUneven(b *testing.B) {
+	var w Wheel
+	for _, c := range planCases() {
+		if c.name == "24h 2:1 rear" {
+			w = c.w
+		}
+	}
+	b.ReportAllocs()
+	for b.Loop() {
+		r, err := Compute(w)
+		if err != nil {
+			b.Fatal(err)
+		}
+		sink = r
+	}
+}

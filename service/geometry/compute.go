@@ -128,10 +128,14 @@ func shortest(g *sideGeom) float64 {
 }
 
 func sideResult(g *sideGeom, s *side, rimR float64, buf *wheelBuf, k int) SideResult {
+	nip, brace := g.repNipple, g.repBrace
+	if g.repBrace == 0 {
+		nip, brace = nippleAngle(rimR, s.r, g.rep), bracingDeg(g.rep)
+	}
 	out := SideResult{
 		LengthMM:               g.rep.lengthMM,
-		BracingAngleDeg:        bracingDeg(g.rep),
-		NippleAngleDeg:         nippleAngle(rimR, s.r, g.rep),
+		BracingAngleDeg:        brace,
+		NippleAngleDeg:         nip,
 		HubAngleDeg:            g.rep.alpha * deg,
 		MaxCrosses:             g.maxCrosses,
 		Spokes:                 s.n,
@@ -239,11 +243,11 @@ func facts(w *Wheel, r *resolved, gl, gr *sideGeom) Facts {
 		turned := func(g *sideGeom, z, zRim float64) float64 {
 			dz := math.Abs(z - zRim)
 			if len(g.spokes) == 0 {
-				return float64(g.n) * dz / math.Hypot(g.rep.inPlane, dz)
+				return float64(g.n) * dz / hypot(g.rep.inPlane, dz)
 			}
 			sum := 0.0
 			for _, s := range g.spokes {
-				sum += dz / math.Hypot(s.inPlane, dz)
+				sum += dz / hypot(s.inPlane, dz)
 			}
 			return sum
 		}
@@ -274,6 +278,10 @@ func plan(n int, gl, gr *sideGeom, r *resolved) []LacingSpoke {
 }
 
 func planSide(out []LacingSpoke, n int, g *sideGeom, crosses int, name string) {
+	if g.spokes == nil { // even lacing: rep turned to each hole
+		evenPlan(out, n, g, crosses, name)
+		return
+	}
 	for _, sg := range g.spokes {
 		// The rim hole's angle exactly; the hub hole's to a billionth of a
 		// degree (a clocking found by search carries rounding noise).
@@ -291,6 +299,39 @@ func planSide(out []LacingSpoke, n int, g *sideGeom, crosses int, name string) {
 	}
 }
 
+// evenPlan writes an evenly laced side's spokes: flange hole j's spoke goes
+// to the side's rim hole m = j + d·k (every other rim hole, the left side's
+// the odd ones), its hub hole at the side's first rim hole's angle plus j
+// pitches (a seated spoke's exit point: its rim hole less d times the seat
+// angle).
+func evenPlan(out []LacingSpoke, n int, g *sideGeom, crosses int, name string) {
+	step := 360 / float64(n)
+	pitch := g.pitch * deg
+	for j := range g.n {
+		d, m := 0, j
+		if !g.radial {
+			d = dirOf(j, crosses, g.n, g.left)
+			m = ((j+d*crosses)%g.n + g.n) % g.n
+		}
+		i := 2*m + g.first
+		rim := (float64(i) + 0.5) * step
+		hub := (float64(g.first)+0.5)*step + float64(j)*pitch
+		if g.straight {
+			hub = rim - float64(d)*g.psi*deg
+		}
+		e := LacingSpoke{Spoke: i + 1, Side: name, RimHoleDeg: rim, HubHoleDeg: roundDeg(normDeg(hub)), Crosses: crosses, LengthMM: g.rep.lengthMM}
+		switch d {
+		case 1:
+			e.Direction, e.Head = "leading", "out"
+		case -1:
+			e.Direction, e.Head = "trailing", "in"
+		default:
+			e.Direction, e.Head = "radial", "out"
+		}
+		out[i] = e
+	}
+}
+
 // roundDeg rounds an angle to 1e-9° (and 360 back to 0).
 func roundDeg(d float64) float64 {
 	d = math.Round(d*1e9) / 1e9
@@ -302,9 +343,9 @@ func roundDeg(d float64) float64 {
 
 // normDeg maps an angle into [0°, 360°).
 func normDeg(d float64) float64 {
-	d = math.Mod(d, 360)
-	if d < 0 {
-		d += 360
+	d -= 360 * math.Floor(d/360)
+	if d >= 360 {
+		d -= 360
 	}
 	return d + 0 // no −0
 }

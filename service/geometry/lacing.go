@@ -44,26 +44,37 @@ type spokeGeom struct {
 	alpha     float64 // in-plane angle between hub and rim hole, ≥ 0
 	inPlane   float64 // in-plane hub → rim distance
 	dz        float64 // axial distance
+	dist      float64 // 3-D centre-line distance
 	lengthMM  float64
 	headGapMM float64 // distance of the next flange hole from the spoke line; +Inf when none
 }
 
 // sideGeom is one side's spokes.
 type sideGeom struct {
-	spokes     []spokeGeom // every spoke, when built
-	rep        spokeGeom   // the longest spoke (all alike with even lacing)
-	uniform    bool        // every spoke has rep's geometry
-	even       bool        // computed in closed form (even lacing)
-	n          int
-	k          int
-	limit      float64 // arccos(r/R): the in-plane angle of a tangent spoke
-	maxCrosses int
-	clearMax   int     // most crosses with no head run over
-	alphaMax   float64 // largest in-plane angle of the side's spokes
-	sumSin     float64 // Σ sin β over the side's spokes
-	headGap    float64 // smallest head gap of the side
-	nippleMax  float64 // largest total nipple angle, degrees
-	braceMin   float64 // smallest bracing angle, degrees
+	spokes  []spokeGeom // every spoke, when built
+	rep     spokeGeom   // the longest spoke (all alike with even lacing)
+	uniform bool        // every spoke has rep's geometry
+	even    bool        // computed in closed form (even lacing)
+	// With even lacing the plan's spokes are rep turned to each hole
+	// (planSide computes them): the side's first rim hole (1 on the left),
+	// its seat angle psi for seated spokes, and whether it is radial.
+	left, straight, radial bool
+	first                  int
+	psi, pitch             float64
+	n                      int
+	k                      int
+	limit                  float64 // arccos(r/R): the in-plane angle of a tangent spoke
+	maxCrosses             int
+	clearMax               int     // most crosses with no head run over
+	alphaMax               float64 // largest in-plane angle of the side's spokes
+	sumSin                 float64 // Σ sin β over the side's spokes
+	headGap                float64 // smallest head gap of the side
+	nippleMax              float64 // largest total nipple angle, degrees
+	braceMin               float64 // smallest bracing angle, degrees
+	// repNipple and repBrace are rep's angles when the side was computed
+	// from one spoke (set by finish; zero otherwise).
+	repNipple NippleAngle
+	repBrace  float64
 }
 
 // isLeftHole reports whether rim hole i takes a left spoke.
@@ -117,7 +128,7 @@ func straightAngle(r, rimR, theta float64) (psi, t float64) {
 // for them, are that spoke turned to each hole. Uneven lacing places every
 // spoke.
 func buildSide(n, nLeft int, rimR float64, s *side, left, even, full bool) sideGeom {
-	g := sideGeom{n: s.n, k: s.crosses, headGap: math.Inf(1), even: even}
+	g := sideGeom{n: s.n, k: s.crosses, headGap: math.Inf(1), even: even, left: left}
 	p := 2 * math.Pi / float64(s.n) // flange hole pitch
 	g.limit = math.Acos(s.r / rimR)
 	if s.n%2 == 0 {
@@ -135,7 +146,11 @@ func buildSide(n, nLeft int, rimR float64, s *side, left, even, full bool) sideG
 		}
 		psi, tIn = straightAngle(s.r, rimR, theta)
 	}
-	g.clearMax = clearCrosses(s, rimR, p, g.maxCrosses, straight)
+	g.straight, g.psi, g.pitch = straight, psi, p
+	g.radial = s.crosses == 0 && (!straight || psi < 1e-12)
+	if left {
+		g.first = 1
+	}
 
 	// one is a spoke at in-plane angle alpha.
 	one := func(alpha float64) spokeGeom {
@@ -145,16 +160,16 @@ func buildSide(n, nLeft int, rimR float64, s *side, left, even, full bool) sideG
 		} else {
 			sg.inPlane = math.Sqrt(math.Max(rimR*rimR+s.r*s.r-2*rimR*s.r*math.Cos(alpha), 0))
 		}
-		d := math.Hypot(sg.inPlane, dz)
+		sg.dist = hypot(sg.inPlane, dz)
 		if straight {
-			sg.lengthMM = d - s.offset
+			sg.lengthMM = sg.dist - s.offset
 		} else {
-			sg.lengthMM = d - s.hole/2
+			sg.lengthMM = sg.dist - s.hole/2
 		}
 		return sg
 	}
 
-	if even && !full {
+	if even {
 		alpha := float64(s.crosses) * p
 		if straight {
 			alpha = psi
@@ -165,6 +180,7 @@ func buildSide(n, nLeft int, rimR float64, s *side, left, even, full bool) sideG
 		}
 		g.uniform = true
 		g.finish(s, rimR, []spokeGeom{g.rep}, s.n)
+		g.clearMax = clearCrosses(s, rimR, p, g.maxCrosses, straight, g.rep.headGapMM)
 		return g
 	}
 
@@ -186,31 +202,6 @@ func buildSide(n, nLeft int, rimR float64, s *side, left, even, full bool) sideG
 		a[m] = rimRad(i, n)
 	}
 	spokes := make([]spokeGeom, nn)
-	if even {
-		alpha := float64(s.crosses) * p
-		if straight {
-			alpha = psi
-		}
-		g.rep = one(alpha)
-		if !straight && s.crosses > 0 {
-			g.rep.headGapMM = headGap(s.r, rimR, alpha, p)
-		}
-		for j := range nn {
-			sg := g.rep
-			m := target[j]
-			sg.rimIdx, sg.dir, sg.rimRad = holes[m], dirs[j], a[m]
-			if straight {
-				sg.hubRad = a[m] - float64(dirs[j])*psi
-			} else {
-				sg.hubRad = a[0] + float64(j)*p
-			}
-			spokes[j] = sg
-		}
-		g.spokes, g.uniform = spokes, true
-		g.finish(s, rimR, []spokeGeom{g.rep}, s.n)
-		return g
-	}
-
 	place := func(phi float64) {
 		for j := range nn {
 			m := target[j]
@@ -232,7 +223,18 @@ func buildSide(n, nLeft int, rimR float64, s *side, left, even, full bool) sideG
 	}
 	phi := a[0]
 	if !straight {
-		phi = bestClocking(a[0], p, func(phi float64) float64 { place(phi); return spread(spokes) })
+		// The spread as the clocking moves: a spoke's length grows as the
+		// cosine of its hub angle falls, so only the extreme cosines matter.
+		k2 := rimR*rimR + s.r*s.r + dz*dz
+		length := func(c float64) float64 { return math.Sqrt(math.Max(k2-2*rimR*s.r*c, 0)) }
+		phi = bestClocking(a[0], p, func(phi float64) float64 {
+			lo, hi := 2.0, -2.0
+			for j := range nn {
+				c := math.Cos(a[target[j]] - phi - float64(j)*p)
+				lo, hi = math.Min(lo, c), math.Max(hi, c)
+			}
+			return length(lo) - length(hi)
+		})
 	}
 	place(phi)
 	g.spokes = spokes
@@ -244,6 +246,8 @@ func buildSide(n, nLeft int, rimR float64, s *side, left, even, full bool) sideG
 	}
 	g.uniform = spread(spokes) < 1e-9
 	g.finish(s, rimR, spokes, 1)
+	// With uneven holes the pitch-based count is an estimate for the side.
+	g.clearMax = clearCrosses(s, rimR, p, g.maxCrosses, straight, math.NaN())
 	return g
 }
 
@@ -252,9 +256,14 @@ func buildSide(n, nLeft int, rimR float64, s *side, left, even, full bool) sideG
 func (g *sideGeom) finish(s *side, rimR float64, spokes []spokeGeom, weight int) {
 	g.braceMin = math.Inf(1)
 	for _, sg := range spokes {
-		g.sumSin += float64(weight) * sg.dz / math.Hypot(sg.inPlane, sg.dz)
+		g.sumSin += float64(weight) * sg.dz / sg.dist
 		g.alphaMax = math.Max(g.alphaMax, sg.alpha)
 		g.headGap = math.Min(g.headGap, sg.headGapMM)
+		if weight > 1 { // the side's one spoke: its angles are the side's
+			g.repNipple, g.repBrace = nippleAngle(rimR, s.r, sg), bracingDeg(sg)
+			g.nippleMax, g.braceMin = g.repNipple.Total, g.repBrace
+			continue
+		}
 		g.nippleMax = math.Max(g.nippleMax, nippleAngle(rimR, s.r, sg).Total)
 		g.braceMin = math.Min(g.braceMin, bracingDeg(sg))
 	}
@@ -264,7 +273,7 @@ func (g *sideGeom) finish(s *side, rimR float64, spokes []spokeGeom, weight int)
 // makes spread smallest: a coarse scan, then a golden-section refinement
 // around the best point. Ties keep the clocking nearest phi0.
 func bestClocking(phi0, p float64, spreadAt func(float64) float64) float64 {
-	const steps = 64
+	const steps = 16
 	best, bestS := phi0, spreadAt(phi0)
 	for i := 1; i <= steps; i++ {
 		for _, sign := range []float64{1, -1} {
@@ -305,7 +314,11 @@ func spread(sg []spokeGeom) float64 {
 }
 
 // remainder maps an angle difference into [−π, π].
-func remainder(x float64) float64 { return math.Remainder(x, 2*math.Pi) }
+func remainder(x float64) float64 { return x - 2*math.Pi*math.Round(x/(2*math.Pi)) }
+
+// hypot is √(a² + b²): the sizes here are far from overflow, and
+// math.Hypot's guard against it was a sixth of a wheel's time.
+func hypot(a, b float64) float64 { return math.Sqrt(a*a + b*b) }
 
 // headGap is, for a crossed J-bend spoke at in-plane angle alpha, the
 // in-plane distance from the next flange hole in its direction to its
@@ -313,10 +326,15 @@ func remainder(x float64) float64 { return math.Remainder(x, 2*math.Pi) }
 // rim hole at (R cos α, R sin α), next hole P = (r cos p, r sin p); the gap
 // is |HP × u| with u the unit direction H → rim.
 func headGap(r, rimR, alpha, p float64) float64 {
+	sinS, cosS := math.Sincos(p)
+	return headGapSC(r, rimR, alpha, sinS, cosS)
+}
+
+// headGapSC is headGap with the pitch's sine and cosine given.
+func headGapSC(r, rimR, alpha, sinS, cosS float64) float64 {
 	sinA, cosA := math.Sincos(alpha)
 	ux, uy := rimR*cosA-r, rimR*sinA
-	inPlane := math.Hypot(ux, uy)
-	sinS, cosS := math.Sincos(p)
+	inPlane := hypot(ux, uy)
 	px, py := r*cosS-r, r*sinS
 	if px*ux+py*uy <= 0 {
 		return math.Inf(1)
@@ -340,14 +358,29 @@ func headGapAt(r, rimR, hub, rim, p float64, dir int) float64 {
 // clearCrosses is the most crosses, up to max, at which a J-bend spoke
 // passes clear of its neighbour's head: a gap of at least half the head
 // and half the spoke. Straight-pull spokes have no neighbouring heads.
-func clearCrosses(s *side, rimR, p float64, max int, straight bool) int {
+// The gap shrinks as the crosses grow, so when the side's own crosses
+// (whose gap ownGap is known; NaN when not) clear the heads only the counts
+// above them need a look, and otherwise only those below.
+func clearCrosses(s *side, rimR, p float64, max int, straight bool, ownGap float64) int {
 	if straight || s.clear <= 0 {
 		return max
 	}
-	for k := max; k > 0; k-- {
-		if headGap(s.r, rimR, float64(k)*p, p) >= s.clear {
+	sinS, cosS := math.Sincos(p)
+	lo, hi := 1, max
+	if s.crosses > 0 && s.crosses <= max && !math.IsNaN(ownGap) {
+		if ownGap >= s.clear {
+			lo = s.crosses + 1
+		} else {
+			hi = s.crosses - 1
+		}
+	}
+	for k := hi; k >= lo; k-- {
+		if headGapSC(s.r, rimR, float64(k)*p, sinS, cosS) >= s.clear {
 			return k
 		}
+	}
+	if lo > 1 {
+		return lo - 1
 	}
 	return 0
 }
@@ -362,7 +395,7 @@ func nippleAngle(rimR, r float64, sg spokeGeom) NippleAngle {
 	return NippleAngle{
 		InPlane:    math.Atan2(y, x) * deg,
 		OutOfPlane: math.Atan2(sg.dz, x) * deg,
-		Total:      math.Atan2(math.Hypot(y, sg.dz), x) * deg,
+		Total:      math.Atan2(hypot(y, sg.dz), x) * deg,
 	}
 }
 

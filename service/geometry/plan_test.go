@@ -397,3 +397,34 @@ func TestHeadGapHandValue(t *testing.T) {
 		t.Errorf("facts %+v: want a 2.12 mm gap against a 3 mm need", sf)
 	}
 }
+
+// TestClearCrossesAgainstScan: max_crosses_clear_of_heads is the largest
+// cross count whose spokes pass every neighbouring head, found here by
+// computing every count from 1 to max_crosses and reading the head gap
+// against the gap the head and spoke need.
+func TestClearCrossesAgainstScan(t *testing.T) {
+	for _, n := range []int{24, 28, 32, 36, 40, 48} {
+		for _, pcd := range []float64{38, 45, 58, 70} {
+			for k := 0; k <= 4; k++ {
+				f := Flange{PCDMM: pcd, CenterToFlangeMM: 35, HoleDiameterMM: fp(2.6)}
+				w := Wheel{SpokeCount: n, Hub: Hub{Left: f, Right: f}, Rim: Rim{ERDMM: 600}, Crosses: cross(k, 0),
+					Spoke: &spoke.Spec{DiameterMM: fp(2)}}
+				res, err := Compute(w)
+				if err != nil {
+					continue
+				}
+				want := 0
+				for c := 1; c <= res.Left.MaxCrosses; c++ {
+					w.Crosses = cross(c, 0)
+					r, err := Compute(w)
+					if err == nil && (!r.Facts.Sides[0].PassesHeads || r.Facts.Sides[0].HeadGapMM >= r.Facts.Sides[0].ClearMM) {
+						want = c
+					}
+				}
+				if got := res.Left.MaxCrossesClearOfHeads; got != want {
+					t.Errorf("%dh pcd %v at %d-cross: clear of heads %d, scan %d", n, pcd, k, got, want)
+				}
+			}
+		}
+	}
+}

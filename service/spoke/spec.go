@@ -371,7 +371,7 @@ const gaugeMatchMM = 0.05
 func GaugeFor(d float64) int {
 	best, bestDiff := 0, math.Inf(1)
 	for g, in := range gaugeInches {
-		if diff := math.Abs(in*MMPerInch - d); diff <= gaugeMatchMM && (diff < bestDiff || diff == bestDiff && g > best) {
+		if diff := math.Abs(in*MMPerInch - d); in > 0 && diff <= gaugeMatchMM && diff < bestDiff {
 			best, bestDiff = g, diff
 		}
 	}

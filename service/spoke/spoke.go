@@ -169,7 +169,8 @@ func MaterialNames() []string {
 
 // gaugeInches is the Imperial Standard Wire Gauge (BS 3737:1964, withdrawn;
 // fixed by Order of Council 1883), in inches, for the sizes spokes come in.
-var gaugeInches = map[int]float64{
+// Indexed by gauge; sizes spokes do not come in are 0.
+var gaugeInches = [...]float64{
 	8: 0.160, 9: 0.144, 10: 0.128, 11: 0.116, 12: 0.104,
 	13: 0.092, 14: 0.080, 15: 0.072, 16: 0.064, 17: 0.056,
 }
@@ -179,19 +180,19 @@ const MMPerInch = 25.4
 
 // GaugeDiameterMM returns the diameter in mm of a BS 3737 wire gauge.
 func GaugeDiameterMM(gauge int) (float64, bool) {
-	in, ok := gaugeInches[gauge]
-	if !ok {
+	if gauge < 0 || gauge >= len(gaugeInches) || gaugeInches[gauge] == 0 {
 		return 0, false
 	}
-	return in * MMPerInch, true
+	return gaugeInches[gauge] * MMPerInch, true
 }
 
 // Gauges lists the supported gauges, thickest first.
 func Gauges() []int {
-	g := make([]int, 0, len(gaugeInches))
-	for k := range gaugeInches {
-		g = append(g, k)
+	var g []int
+	for k, in := range gaugeInches {
+		if in > 0 {
+			g = append(g, k)
+		}
 	}
-	sort.Ints(g)
 	return g
 }

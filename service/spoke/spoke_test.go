@@ -19,8 +19,8 @@ func num(t *testing.T, s string) float64 {
 // TestGaugeDiameters checks every gauge against BS 3737 (testdata/reference/swg.tsv).
 func TestGaugeDiameters(t *testing.T) {
 	rows := reftest.Rows(t, "swg.tsv")
-	if len(rows) != len(gaugeInches) {
-		t.Fatalf("reference has %d gauges, package %d", len(rows), len(gaugeInches))
+	if len(rows) != len(Gauges()) {
+		t.Fatalf("reference has %d gauges, package %d", len(rows), len(Gauges()))
 	}
 	for _, r := range rows {
 		g, _ := strconv.Atoi(r[0])
