@@ -64,8 +64,22 @@ func (s *Server) checkCompatibility(c echo.Context) error {
 // batchRequest keeps each wheel raw: each is decoded strictly on its own
 // so that one bad wheel costs only its slot.
 type batchRequest struct {
-	Wheels []json.RawMessage `json:"wheels"`
+	Wheels []rawWheel `json:"wheels"`
 }
+
+// rawWheel is one element of wheels as written. It takes null too, so that
+// a null wheel is refused in its slot, as the splitter of the plain body
+// shape leaves it to be, not as the whole body.
+type rawWheel []byte
+
+// UnmarshalJSON keeps the element's bytes.
+func (r *rawWheel) UnmarshalJSON(b []byte) error {
+	*r = append((*r)[:0], b...)
+	return nil
+}
+
+// JSONNullable lets null through the strict decoder to UnmarshalJSON.
+func (*rawWheel) JSONNullable() {}
 
 // computeSpokeLengthsBatch answers {"results": [...], "succeeded", "failed"}.
 //
@@ -74,7 +88,7 @@ type batchRequest struct {
 // budget. Instead this handler checks the envelope itself — JSON, only
 // "wheels", 1 to 10,000 items — and decodes each wheel strictly (unknown
 // members and wrong types are a 400 problem in its slot), by the fast path
-// in wheeljson.go or by encoding/json.
+// in wheeljson.go or by the strict decoder every route uses (strictjson).
 //
 // The body is cut into one stretch of wheels per CPU and each stretch is
 // split, decoded, computed and encoded by its own goroutine into its own
@@ -273,7 +287,7 @@ func (pt *batchPart) add(raw []byte, decoded bool) {
 
 // batchFromBody handles a body of the plain shape {"wheels": [...]}; ok is
 // false for any other shape (as splitWheels in the tests), which the
-// caller then decodes with encoding/json. A body big enough is cut into up
+// caller then decodes with the strict decoder. A body big enough is cut into up
 // to cpus parts at guessed boundaries between two wheels (cutWheels), all
 // scanned at once. The first part is scanned from the true start; a part
 // counts only when the part before it in the chain, scanning on, reaches
@@ -426,9 +440,9 @@ func skipSpace(b []byte, i int) int {
 	return i
 }
 
-// batchFromRaws handles wheels that encoding/json split out of a body of
+// batchFromRaws handles wheels that the strict decoder split out of a body of
 // another shape; each part knows its first index.
-func (s *Server) batchFromRaws(raws []json.RawMessage, instance string) []*batchPart {
+func (s *Server) batchFromRaws(raws []rawWheel, instance string) []*batchPart {
 	ranges := split(len(raws))
 	parts := make([]*batchPart, len(ranges))
 	for k, r := range ranges {

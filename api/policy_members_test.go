@@ -134,3 +134,45 @@ func TestSharedMembersUnderThePolicy(t *testing.T) {
 		})
 	}
 }
+
+// TestBatchPathsAgreeOnOddWheels: a batch body in the plain shape (split by
+// the fast scanner) and the same body with an escaped member name (decoded
+// by the strict decoder) answer alike: a null wheel, a wheel of the wrong
+// kind and a wheel with an unknown member are refused in their slots, not
+// as the whole body, on both paths.
+func TestBatchPathsAgreeOnOddWheels(t *testing.T) {
+	e := newEnv(t)
+	r := e.keyA[service.RoleRead]
+	wheels := `[` + contractBody + `, null, 5, {"colour": 1}]`
+	plain := e.want(e.do("POST", "/v1/spoke-lengths/batch", r, `{"wheels": `+wheels+`}`), 200)
+	escaped := e.want(e.do("POST", "/v1/spoke-lengths/batch", r, `{"wh\u0065els": `+wheels+`}`), 200)
+	type slot struct {
+		Status int `json:"status"`
+		Errors []struct {
+			Pointer string `json:"pointer"`
+		} `json:"errors"`
+	}
+	var a, b struct {
+		Results   []slot `json:"results"`
+		Succeeded int    `json:"succeeded"`
+		Failed    int    `json:"failed"`
+	}
+	plain.json(t, &a)
+	escaped.json(t, &b)
+	if a.Succeeded != 1 || a.Failed != 3 || len(a.Results) != 4 {
+		t.Fatalf("plain: %d succeeded, %d failed: %s", a.Succeeded, a.Failed, plain.body)
+	}
+	for i, want := range []string{"", "/wheels/1", "/wheels/2", "/wheels/3/colour"} {
+		if i == 0 {
+			continue
+		}
+		for name, res := range map[string]slot{"plain": a.Results[i], "escaped": b.Results[i]} {
+			if res.Status != 400 || len(res.Errors) != 1 || res.Errors[0].Pointer != want {
+				t.Errorf("%s slot %d: %+v, want a 400 at %s", name, i, res, want)
+			}
+		}
+	}
+	if !bytes.Equal(plain.body, escaped.body) {
+		t.Errorf("the two paths answer differently:\n%s\n%s", plain.body, escaped.body)
+	}
+}

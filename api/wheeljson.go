@@ -324,8 +324,8 @@ func (p *wheelParser) peek(c byte) bool {
 }
 
 // object parses {"k": v, ...}; member parses v for known k and returns
-// false for an unknown one. A repeated member declines (encoding/json
-// merges repeats in ways not worth copying).
+// false for an unknown one. A repeated member declines (the strict decoder
+// refuses it and says where).
 func (p *wheelParser) object(member func(k []byte) bool) {
 	if !p.expect('{') {
 		return
@@ -519,7 +519,7 @@ func (p *wheelParser) number() float64 {
 		return v
 	}
 	v, err := strconv.ParseFloat(string(s), 64)
-	if err != nil { // out of range: encoding/json's error, not ours to word
+	if err != nil { // out of range: the strict decoder's error, not ours to word
 		p.bad = true
 	}
 	return v

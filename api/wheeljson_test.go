@@ -108,8 +108,8 @@ func FuzzWheelParser(f *testing.F) {
 	f.Fuzz(func(t *testing.T, b []byte) { agree(t, b) })
 }
 
-// TestSplitWheels: the splitter finds the same elements encoding/json
-// does, or declines.
+// TestSplitWheels: the splitter finds the same elements the strict decoder
+// (the handler's fallback) does, or declines.
 func TestSplitWheels(t *testing.T) {
 	bodies := []string{
 		`{"wheels": [` + strings.Join(wheelSeeds[:3], ",") + `]}`,
@@ -123,18 +123,18 @@ func TestSplitWheels(t *testing.T) {
 		if !ok {
 			continue
 		}
-		var env struct{ Wheels []json.RawMessage }
-		if err := json.Unmarshal([]byte(b), &env); err != nil {
-			t.Errorf("split %q, encoding/json refuses it: %v", b, err)
+		var env batchRequest
+		if err := decodeBytes([]byte(b), &env); err != nil {
+			t.Errorf("split %q, the strict decoder refuses it: %v", b, err)
 			continue
 		}
 		if len(items) != len(env.Wheels) {
-			t.Errorf("%q: %d items, encoding/json %d", b, len(items), len(env.Wheels))
+			t.Errorf("%q: %d items, the strict decoder %d", b, len(items), len(env.Wheels))
 			continue
 		}
 		for i := range items {
 			if strings.TrimSpace(string(items[i])) != string(env.Wheels[i]) {
-				t.Errorf("%q item %d: %q, encoding/json %q", b, i, items[i], env.Wheels[i])
+				t.Errorf("%q item %d: %q, the strict decoder %q", b, i, items[i], env.Wheels[i])
 			}
 		}
 	}
@@ -224,7 +224,7 @@ func TestAppendResultMatches(t *testing.T) {
 // elements of a body {"wheels": [e0, e1, …]} without decoding them. ok is
 // false for any other shape (another member, escapes in the member name,
 // unbalanced brackets, …): the handler then decodes the envelope with
-// encoding/json, which also words the error. TestBatchAnswerAgrees holds
+// the strict decoder, which also words the error. TestBatchAnswerAgrees holds
 // the handler to it.
 func splitWheels(b []byte) (items [][]byte, ok bool) {
 	p := wheelParser{b: b}
