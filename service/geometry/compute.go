@@ -251,7 +251,12 @@ func facts(w *Wheel, r *resolved, gl, gr *sideGeom) Facts {
 			}
 			return sum
 		}
-		f.RatioIfRimTurned = turned(gr, r.right.z, -o-sl) / turned(gl, r.left.z, -o+sr)
+		// A left side left with no bracing (its holes in its flange's
+		// plane) has no ratio to compare: 0, as for a rim with no offset,
+		// never +Inf or NaN. The rule set compares only a positive ratio.
+		if left := turned(gl, r.left.z, -o+sr); left > 0 {
+			f.RatioIfRimTurned = turned(gr, r.right.z, -o-sl) / left
+		}
 	}
 	return f
 }

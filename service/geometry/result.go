@@ -123,7 +123,8 @@ type Facts struct {
 	// TargetN is the target tension, 0 when none.
 	TargetN float64
 	// RatioIfRimTurned is T_left/T_right with the rim turned round (its
-	// offset and stagger mirrored); 0 when the rim has neither.
+	// offset and stagger mirrored); 0 when the rim has neither, or when
+	// turned round the left spokes would have no bracing (no ratio).
 	RatioIfRimTurned float64
 	// Stock is what stock lengths were chosen from (nil: none).
 	Stock *Stock
