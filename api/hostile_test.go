@@ -2,6 +2,7 @@ package api_test
 
 import (
 	"bytes"
+	"compress/gzip"
 	"encoding/json"
 	"fmt"
 	"slices"
@@ -380,7 +381,8 @@ func TestNullRefused(t *testing.T) {
 }
 
 // TestContentTypeRefused: every route with a body answers 415 to XML,
-// text, a form or no Content-Type at all, and stores nothing.
+// text, a form or no Content-Type at all, and to a Content-Encoding other
+// than identity, and stores nothing.
 func TestContentTypeRefused(t *testing.T) {
 	e := newEnv(t)
 	cases := bodyCases(e)
@@ -397,8 +399,23 @@ func TestContentTypeRefused(t *testing.T) {
 		if n := e.changeCount(); n != before {
 			t.Errorf("%s: refused bodies wrote %d changes", k, n-before)
 		}
-		// The same with a JSON type, a charset parameter allowed.
-		e.want(e.do(method, c.path, c.key, body, append(slices.Clone(c.hdr), "Content-Type", "application/json; charset=utf-8")...), c.ok)
+		// A Content-Encoding other than identity: not decoded, so refused
+		// (gzip here is the body's real gzip, and a label on plain bytes).
+		var gz bytes.Buffer
+		zw := gzip.NewWriter(&gz)
+		zw.Write([]byte(body))
+		zw.Close()
+		for _, b := range []string{gz.String(), body} {
+			for _, ce := range []string{"gzip", "deflate", "br"} {
+				e.want(e.do(method, c.path, c.key, b, append(slices.Clone(c.hdr), "Content-Encoding", ce)...), 415).problem(t)
+			}
+		}
+		if n := e.changeCount(); n != before {
+			t.Errorf("%s: encoded bodies wrote %d changes", k, n-before)
+		}
+		// The same with a JSON type, a charset parameter allowed, and the
+		// identity coding named.
+		e.want(e.do(method, c.path, c.key, body, append(slices.Clone(c.hdr), "Content-Type", "application/json; charset=utf-8", "Content-Encoding", "identity")...), c.ok)
 	}
 }
 
@@ -623,4 +640,59 @@ func TestProblemDetailsSpeakToTheIntegrator(t *testing.T) {
 		wantProblemAt(t, res, 400, ptr)
 		cleanDetail(t, res.problem(t))
 	}
+}
+
+// TestQueryStringsChecked: on every /v1 route a query parameter the
+// operation does not declare, a declared one given twice and a malformed
+// %-escape are 400s naming the parameter, before anything else is judged
+// (so any id and no body will do); pretty is taken everywhere.
+func TestQueryStringsChecked(t *testing.T) {
+	e := newEnv(t)
+	admin := e.keyA[service.RoleAdmin]
+	for _, r := range e.srv.Routes() {
+		if !strings.HasPrefix(r.Path, "/v1/") {
+			continue
+		}
+		path := strings.Replace(r.Path, "{id}", uuid.NewString(), 1)
+		t.Run(r.Method+" "+r.Path, func(t *testing.T) {
+			wantProblemAt(t, e.do(r.Method, path+"?colour=red", admin, nil), 400, "query:colour")
+			wantProblemAt(t, e.do(r.Method, path+"?Limit=1", admin, nil), 400, "query:Limit")
+			wantProblemAt(t, e.do(r.Method, path+"?colour=%zz", admin, nil), 400, "query:colour")
+			wantProblemAt(t, e.do(r.Method, path+"?pretty&pretty", admin, nil), 400, "query:pretty")
+			op := e.srv.Doc().Paths.Find(r.Path).GetOperation(r.Method)
+			for _, p := range op.Parameters {
+				if p.Value.In != "query" {
+					continue
+				}
+				name := p.Value.Name
+				wantProblemAt(t, e.do(r.Method, path+"?"+name+"=1&"+name+"=2", admin, nil), 400, "query:"+name)
+				wantProblemAt(t, e.do(r.Method, path+"?"+name+"=%zz", admin, nil), 400, "query:"+name)
+			}
+		})
+	}
+	e.want(e.do("GET", "/v1/me?pretty", admin, nil), 200)
+	e.want(e.do("GET", "/v1/builds?limit=1&pretty=1", admin, nil), 200)
+}
+
+// TestWrongMethodIs405: a /v1 path of the spec asked with a method it does
+// not take answers 405 with Allow listing the ones it takes; a path that is
+// not the spec's stays 404.
+func TestWrongMethodIs405(t *testing.T) {
+	e := newEnv(t)
+	admin := e.keyA[service.RoleAdmin]
+	for _, c := range []struct{ method, path, allow string }{
+		{"GET", "/v1/spoke-lengths", "POST"},
+		{"DELETE", "/v1/builds", "GET, POST"},
+		{"PATCH", "/v1/builds", "GET, POST"}, // not /v1/builds/{id} with an empty id
+		{"PUT", "/v1/locations/" + uuid.NewString(), "GET, PATCH"},
+		{"TRACE", "/v1/me", "GET"},
+		{"OPTIONS", "/v1/parts/" + uuid.NewString() + "/stock", "GET, PUT"},
+	} {
+		r := e.want(e.do(c.method, c.path, admin, nil), 405)
+		r.problem(t)
+		if got := r.Header.Get("Allow"); got != c.allow {
+			t.Errorf("%s %s: Allow %q, want %q", c.method, c.path, got, c.allow)
+		}
+	}
+	e.want(e.do("GET", "/v1/no-such-thing", admin, nil), 404).problem(t)
 }

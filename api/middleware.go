@@ -5,13 +5,18 @@ import (
 	"errors"
 	"io"
 	"log/slog"
+	"maps"
 	"net/http"
+	"net/url"
 	"os"
+	"slices"
 	"strings"
 	"time"
 	"unicode/utf8"
 
+	"github.com/getkin/kin-openapi/openapi3"
 	"github.com/getkin/kin-openapi/openapi3filter"
+	"github.com/getkin/kin-openapi/routers"
 	"github.com/labstack/echo/v4"
 
 	"wheelbench/service"
@@ -94,10 +99,20 @@ func (s *Server) validateRequest(next echo.HandlerFunc) echo.HandlerFunc {
 			return next(c)
 		}
 		route, params, err := s.router.FindRoute(req)
+		if err == nil && slices.Contains(slices.Collect(maps.Values(params)), "") {
+			// The router matches /v1/builds to /v1/builds/{id} with an
+			// empty id; that path was not asked for.
+			err = errors.New("empty path parameter")
+		}
 		if err != nil {
+			if allow := s.allowedMethods(req); len(allow) > 0 {
+				c.Response().Header().Set("Allow", strings.Join(allow, ", "))
+				return &httpProblem{status: http.StatusMethodNotAllowed,
+					detail: "This path does not take " + req.Method + "; it takes " + strings.Join(allow, ", ") + "."}
+			}
 			return echo.ErrNotFound
 		}
-		if err := checkQuery(req); err != nil {
+		if err := checkQuery(req, route); err != nil {
 			return err
 		}
 		r, _ := s.routeFor(req.Method, c.Path())
@@ -105,6 +120,11 @@ func (s *Server) validateRequest(next echo.HandlerFunc) echo.HandlerFunc {
 		if route.Operation.RequestBody != nil {
 			if !isJSON(req.Header.Get(echo.HeaderContentType)) {
 				return &httpProblem{status: http.StatusUnsupportedMediaType, detail: "Send the body as application/json."}
+			}
+			if ce := req.Header.Get("Content-Encoding"); ce != "" && !strings.EqualFold(strings.TrimSpace(ce), "identity") {
+				// Not decoded here: read as is, a compressed body would be
+				// judged as garbled JSON.
+				return &httpProblem{status: http.StatusUnsupportedMediaType, detail: "Send the body without a Content-Encoding: compressed request bodies are not accepted."}
 			}
 			if !r.OwnBodyCheck && !r.SpecCheckOnError {
 				body, err := io.ReadAll(req.Body)
@@ -135,21 +155,84 @@ func (s *Server) validateRequest(next echo.HandlerFunc) echo.HandlerFunc {
 	}
 }
 
-// checkQuery refuses query names and values that are not valid UTF-8 or
-// hold U+0000: no parameter of ours takes them, and the database cannot
-// compare text with them.
-func checkQuery(req *http.Request) error {
-	for name, vals := range req.URL.Query() {
-		bad := !utf8.ValidString(name) || strings.IndexByte(name, 0) >= 0
-		for _, v := range vals {
-			bad = bad || !utf8.ValidString(v) || strings.IndexByte(v, 0) >= 0
+// allowedMethods lists the methods the spec has for req's path, none when
+// the path is not the spec's.
+func (s *Server) allowedMethods(req *http.Request) []string {
+	var out []string
+	for _, m := range []string{http.MethodGet, http.MethodPost, http.MethodPut, http.MethodPatch, http.MethodDelete} {
+		try := req.Clone(req.Context())
+		try.Method = m
+		// Not a match with an empty path parameter (see validateRequest).
+		if _, params, err := s.router.FindRoute(try); err == nil && !slices.Contains(slices.Collect(maps.Values(params)), "") {
+			out = append(out, m)
 		}
-		if bad {
-			if !utf8.ValidString(name) {
-				name = strings.ToValidUTF8(name, "\ufffd")
+	}
+	return out
+}
+
+// checkQuery refuses a query string that does not parse (a malformed
+// %-escape would otherwise drop its pair unseen), names and values that
+// are not valid UTF-8 or hold U+0000 (no parameter of ours takes them, and
+// the database cannot compare text with them), a name the operation does
+// not declare, and a declared one given twice (only one would be used).
+func checkQuery(req *http.Request, route *routers.Route) error {
+	bad := func(name, msg string) error {
+		if !utf8.ValidString(name) {
+			name = strings.ToValidUTF8(name, "\ufffd")
+		}
+		return &validationError{status: http.StatusBadRequest, detail: "The request has invalid parameters: see errors.",
+			fields: []FieldProblem{{Pointer: "query:" + strings.ReplaceAll(name, "\x00", ""), Message: msg}}}
+	}
+	if req.URL.RawQuery == "" {
+		return nil
+	}
+	q, err := url.ParseQuery(req.URL.RawQuery)
+	if err != nil {
+		for _, pair := range strings.Split(req.URL.RawQuery, "&") {
+			name, value, _ := strings.Cut(pair, "=")
+			if _, err := url.QueryUnescape(name); err != nil {
+				return bad(name, "is not a valid %-escaped query name")
 			}
-			return &validationError{status: http.StatusBadRequest, detail: "The request has invalid parameters: see errors.",
-				fields: []FieldProblem{{Pointer: "query:" + strings.ReplaceAll(name, "\x00", ""), Message: "must be valid UTF-8 without the character U+0000"}}}
+			if _, err := url.QueryUnescape(value); err != nil {
+				n, _ := url.QueryUnescape(name)
+				return bad(n, "is not a valid %-escaped query value")
+			}
+		}
+		return bad("", "the query string does not parse")
+	}
+	// pretty: echo indents a JSON answer when it is present; every
+	// operation takes it (the API description says so).
+	declared := map[string]bool{"pretty": true}
+	for _, ps := range []openapi3.Parameters{route.PathItem.Parameters, route.Operation.Parameters} {
+		for _, p := range ps {
+			if p.Value != nil && p.Value.In == openapi3.ParameterInQuery {
+				declared[p.Value.Name] = true
+			}
+		}
+	}
+	names := make([]string, 0, len(q))
+	for name := range q {
+		names = append(names, name)
+	}
+	slices.Sort(names) // the first bad one by name, the same every time
+	for _, name := range names {
+		vals := q[name]
+		invalid := !utf8.ValidString(name) || strings.IndexByte(name, 0) >= 0
+		for _, v := range vals {
+			invalid = invalid || !utf8.ValidString(v) || strings.IndexByte(v, 0) >= 0
+		}
+		switch {
+		case invalid:
+			return bad(name, "must be valid UTF-8 without the character U+0000")
+		case !declared[name]:
+			known := make([]string, 0, len(declared))
+			for k := range declared {
+				known = append(known, k)
+			}
+			slices.Sort(known)
+			return bad(name, "is not a parameter of this operation (it takes "+strings.Join(known, ", ")+")")
+		case len(vals) > 1:
+			return bad(name, "is given more than once")
 		}
 	}
 	return nil

@@ -10,7 +10,8 @@
 //     text cannot hold it, and no field of ours has a use for it);
 //   - null, except into a type that says it takes null (Nullable);
 //   - numbers beyond the range of their Go type (1e400 for a float64);
-//   - anything after the one JSON value.
+//   - anything after the one JSON value;
+//   - nesting deeper than 10000 arrays and objects (the library's bound).
 //
 // Its errors are *Error values: a pointer and a message written for the
 // integrator, never a Go type name. It imports only the JSON library.
@@ -162,6 +163,9 @@ func translate(err error) error {
 			return &Error{Message: "the body is empty or cut short"}
 		case syn.Err != nil && strings.Contains(syn.Err.Error(), "after top-level value"):
 			return &Error{Message: "the body has data after its JSON value"}
+		case syn.Err != nil && strings.Contains(syn.Err.Error(), "exceeded max depth"):
+			// The library's bound; its pointer would be 10,000 segments long.
+			return &Error{Message: "the body nests arrays and objects more than 10000 deep"}
 		}
 		return &Error{Pointer: ptr, Message: fmt.Sprintf("is not valid JSON (at byte %d)", syn.ByteOffset)}
 	}

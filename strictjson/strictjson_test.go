@@ -2,6 +2,7 @@ package strictjson
 
 import (
 	"errors"
+	"strings"
 	"testing"
 	"time"
 
@@ -120,6 +121,8 @@ func TestCheck(t *testing.T) {
 		{"[\"\xc3\"]", "/0", "is not valid UTF-8"},
 		{`{"a": 1} 2`, "", "the body has data after its JSON value"},
 		{`[1, 2`, "", "the body is empty or cut short"},
+		{strings.Repeat("[", 10001) + strings.Repeat("]", 10001), "", "the body nests arrays and objects more than 10000 deep"},
+		{strings.Repeat(`{"a":`, 10001) + "1" + strings.Repeat("}", 10001), "", "the body nests arrays and objects more than 10000 deep"},
 	} {
 		err := Check([]byte(c.body))
 		var fe *Error
@@ -127,7 +130,8 @@ func TestCheck(t *testing.T) {
 			t.Errorf("Check(%q) = %v, want %q %q", c.body, err, c.ptr, c.msg)
 		}
 	}
-	for _, ok := range []string{`{}`, `[]`, `1`, `"x"`, `null`, `{"a": [1, 2.5e300, "\\u0000", {"b": null}]}`, " {\"ü\": \"ß\"} \n"} {
+	for _, ok := range []string{`{}`, `[]`, `1`, `"x"`, `null`, `{"a": [1, 2.5e300, "\\u0000", {"b": null}]}`, " {\"ü\": \"ß\"} \n",
+		strings.Repeat("[", 10000) + strings.Repeat("]", 10000)} {
 		if err := Check([]byte(ok)); err != nil {
 			t.Errorf("Check(%q) = %v", ok, err)
 		}

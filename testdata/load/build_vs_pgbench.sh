@@ -7,6 +7,11 @@
 # SSLMODE=disable runs both sides without TLS on loopback (default: prefer).
 # CONNS sets both sides' concurrency; the service inherits GOGC and
 # GOMAXPROCS (GOMAXPROCS=1 leaves PostgreSQL a core on a 2-vCPU host).
+# FK_ALTERNATE=1 measures the tenant foreign keys of migration 00010
+# (builds → locations, changes → organisations): even rounds run without
+# them (dropped before the round, added back NOT VALID after it, which
+# PostgreSQL still enforces on every new row), odd rounds with them, so the
+# two sides alternate on the same database and machine.
 set -euo pipefail
 cd "$(dirname "$0")/../.."
 DB=${DB:-wbload}
@@ -40,7 +45,20 @@ TICK=$(getconf CLK_TCK)
 machine() { awk '/^cpu / {print $2+$3+$4+$5+$6+$7+$8+$9, $6, $9}' /proc/stat; }
 echo "$(uptime)"
 echo "concurrency $CONNS, service GOMAXPROCS ${GOMAXPROCS:-unset (all CPUs)}, GOGC ${GOGC:-unset (serve: 400)}, sslmode ${SSLMODE:-prefer}"
+fks() { # drop | add: the two keys of migration 00010
+  if [ "$1" = drop ]; then
+    psql -h 127.0.0.1 -U postgres -d "$DB" -qc "ALTER TABLE builds DROP CONSTRAINT builds_org_id_location_id_fkey" \
+      -c "ALTER TABLE changes DROP CONSTRAINT changes_org_id_fkey"
+  else
+    psql -h 127.0.0.1 -U postgres -d "$DB" -qc "ALTER TABLE builds ADD CONSTRAINT builds_org_id_location_id_fkey FOREIGN KEY (org_id, location_id) REFERENCES locations (org_id, id) NOT VALID" \
+      -c "ALTER TABLE changes ADD CONSTRAINT changes_org_id_fkey FOREIGN KEY (org_id) REFERENCES organisations (id) NOT VALID"
+  fi
+}
 for r in $(seq 1 "$ROUNDS"); do
+  keys=""
+  if [ -n "${FK_ALTERNATE:-}" ]; then
+    if [ $((r % 2)) -eq 0 ]; then keys="without keys"; fks drop; else keys="with keys"; fi
+  fi
   before=$(cpu)
   pg0=$(pgcpu)
   read -r m0 w0 s0 < <(machine)
@@ -52,9 +70,10 @@ for r in $(seq 1 "$ROUNDS"); do
   non2xx=$(echo "$out" | sed -n 's/.*Non-2xx or 3xx responses: *//p')
   read -r m1 w1 s1 < <(machine)
   tps=$(pgbench -h 127.0.0.1 -U postgres -n -f testdata/load/insert.sql -c "$CONNS" -j 2 -T "$DUR" "$DB" 2>/dev/null | sed -n 's/^tps = \([0-9.]*\).*/\1/p')
-  awk -v r="$r" -v rps="$rps" -v tps="$tps" -v reqs="$reqs" -v ticks=$((after - before)) -v pgticks=$((pg1 - pg0)) -v tick="$TICK" -v bad="${non2xx:-0}" \
+  [ "$keys" = "without keys" ] && fks add
+  awk -v r="$r" -v keys="${keys:+ ($keys)}" -v rps="$rps" -v tps="$tps" -v reqs="$reqs" -v ticks=$((after - before)) -v pgticks=$((pg1 - pg0)) -v tick="$TICK" -v bad="${non2xx:-0}" \
     -v steal=$(( (s1 - s0) * 100 / (m1 - m0 + 1) )) -v iowait=$(( (w1 - w0) * 100 / (m1 - m0 + 1) )) 'BEGIN {
-    printf "round %s: builds %.0f/s (%d requests, %s non-2xx, server CPU %.0f us/build, PostgreSQL CPU %.0f us/build, steal %d%%, iowait %d%%), pgbench INSERT %.0f tps, ratio %.2f\n",
-      r, rps, reqs, bad, ticks / tick / reqs * 1e6, pgticks / tick / reqs * 1e6, steal, iowait, tps, rps / tps }'
+    printf "round %s%s: builds %.0f/s (%d requests, %s non-2xx, server CPU %.0f us/build, PostgreSQL CPU %.0f us/build, steal %d%%, iowait %d%%), pgbench INSERT %.0f tps, ratio %.2f\n",
+      r, keys, rps, reqs, bad, ticks / tick / reqs * 1e6, pgticks / tick / reqs * 1e6, steal, iowait, tps, rps / tps }'
 done
 psql -h 127.0.0.1 -U postgres -d "$DB" -Atc "SELECT 'builds stored: ' || count(*) FROM builds"
