@@ -98,7 +98,7 @@ func validateLocationFields(name, code, tz, address *string, taxPPM *int64) erro
 	}
 	if tz != nil && *tz != "" {
 		if _, err := time.LoadLocation(*tz); err != nil || *tz == "Local" {
-			errs = append(errs, Invalid("/timezone", "timezone must be an IANA time zone name such as Europe/Paris or UTC"))
+			errs = append(errs, Invalid("/timezone", "timezone must be an IANA time zone name (Area/Location, Etc/GMT-2 or UTC)"))
 		}
 	}
 	if address != nil && utf8.RuneCountInString(*address) > 1000 {
