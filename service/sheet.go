@@ -65,7 +65,7 @@ type SheetAim struct {
 // BuildSheet reads what a build's bench sheet needs. ErrNotFound when the
 // build is not the caller's organisation's.
 func (s *Service) BuildSheet(ctx context.Context, p Principal, id uuid.UUID) (BuildSheet, error) {
-	b, err := s.store.GetBuild(ctx, p.OrgID, id)
+	b, err := s.GetBuild(ctx, p, id) // the same read, and the same access rules, as GET /v1/builds/{id}
 	if err != nil {
 		return BuildSheet{}, err
 	}

@@ -125,7 +125,8 @@ var (
 
 // TestSheetWithoutTensiometer: a build computed where no tensiometer was
 // calibrated prints no aim number, says so in words on both sides and in
-// the cautions, and still gives each side's target tension.
+// the cautions, and still gives each side's target tension (1100 N /
+// 9.80665 N per kgf, the kgf's definition = 112.17 → 112.2 kgf).
 func TestSheetWithoutTensiometer(t *testing.T) {
 	s := sheetFor(t, wheel(&geometry.Stock{IncrementMM: fp(2)}), "spec", nil)
 	_, text := render(t, s, A4)
@@ -146,6 +147,9 @@ func TestSheetWithoutTensiometer(t *testing.T) {
 // TestSheetAims: a reliable aim is printed rounded to the dial unit with
 // its interval; an extrapolated, unreliable one only as an estimate with
 // the words NOT RELIABLE; a refused one not at all, with the reason.
+// Expected figures by hand: 287.62 → 288 and [286.4, 288.81] → 286–289
+// dial units (to the whole unit); 1100 N / 9.80665 N per kgf (the kgf's
+// definition, CGPM 1901) = 112.17 → 112.2 kgf.
 func TestSheetAims(t *testing.T) {
 	ok := &tension.Target{TensionN: 1100, TensionKgf: 1100 / tension.NewtonsPerKgf, Reading: 287.62, ReadingInterval: [2]float64{286.4, 288.81},
 		Reliable: true, Status: tension.StatusInterpolated}
@@ -231,5 +235,33 @@ func TestSheetStockAndParts(t *testing.T) {
 	_, text = render(t, s, A4)
 	if !strings.HasPrefix(text[strings.Index(text, "Status"):], "Status draft\nDOES NOT FIT") {
 		t.Errorf("a build that does not fit does not say so under the header:\n%s", text)
+	}
+}
+
+// TestSheetRecordsThatMoved: a tensiometer that has since moved to another
+// location and a catalog part that is gone are said plainly, in the
+// cautions; a catalog washer a change proposes is named by SKU.
+func TestSheetRecordsThatMoved(t *testing.T) {
+	ok := &tension.Target{TensionN: 1100, Reading: 287.62, ReadingInterval: [2]float64{286.4, 288.81}, Reliable: true, Status: tension.StatusCalibrated}
+	s := sheetFor(t, wheel(&geometry.Stock{IncrementMM: fp(2)}), "spec", &service.SheetAims{Right: service.SheetAim{Target: ok}, Left: service.SheetAim{Target: ok}})
+	s.Tool.LocationID = uuid.New()
+	gone := uuid.New()
+	s.Parts[0] = service.SheetPart{Role: service.PartHub, CatalogID: &gone}
+	s.Missing = append(s.Missing, "catalog part "+gone.String()+" is no longer in the catalog")
+	washer := uuid.New()
+	s.Build.Snapshot.Compatibility.Changes = append(s.Build.Snapshot.Compatibility.Changes, fit.Change{Kind: fit.ChangeAddWashers, Where: fit.AtHub,
+		Side: "left", PerSpoke: 1, Count: 16, ThicknessMM: fp(0.5), PartID: washer.String()})
+	s.ChangeParts = map[string]service.Part{washer.String(): {SKU: "WSH-05", Name: "Washer 0.5 mm (test)"}}
+	_, text := render(t, s, A4)
+	for _, want := range []string{
+		"The tensiometer these aim readings were computed for has since moved to another location",
+		"Not on this sheet: catalog part " + gone.String() + " is no longer in the catalog.",
+		"| Hub | — | catalog part no longer in the catalog | check",
+		"16 washers, 1 per spoke under each spoke head, against the hub flange (left side), each 0.5 mm thick; catalog washer WSH-05 (Washer 0.5 mm (test)).",
+		"on a calibrated column",
+	} {
+		if !strings.Contains(text, want) {
+			t.Errorf("the sheet lacks %q:\n%s", want, text)
+		}
 	}
 }
