@@ -19,7 +19,6 @@ import (
 // worded, every unknown already said in words.
 type view struct {
 	CSSPage   string
-	Paper     Paper
 	Ref       string
 	BuildID   string
 	Status    string
@@ -112,7 +111,7 @@ func buildView(s service.BuildSheet, paper Paper) view {
 	b, snap := s.Build, s.Build.Snapshot
 	rep := snap.Compatibility
 	geo := rep.Geometry
-	v := view{CSSPage: paper.cssSize(), Paper: paper, Ref: b.ExternalRef, BuildID: b.ID.String(), Status: strings.ReplaceAll(string(b.Status), "_", " "),
+	v := view{CSSPage: paper.cssSize(), Ref: b.ExternalRef, BuildID: b.ID.String(), Status: strings.ReplaceAll(string(b.Status), "_", " "),
 		Location: s.Location.Name, Code: s.Location.Code, Address: s.Location.Address, TimeZone: s.Location.Timezone,
 		Rounds: []string{"1", "2", "3", "final"}}
 	if v.Ref == "" {
@@ -376,8 +375,11 @@ func describeChanges(cs []fit.Change, parts map[string]service.Part, nippleWashe
 		switch c.Kind {
 		case fit.ChangeAddWashers:
 			where := "under each spoke head, against the hub flange"
-			if c.Where == fit.AtRim {
+			switch c.Where {
+			case fit.AtRim:
 				where, rimWasher = "under each nipple head, against the rim", true
+			case "":
+				where = "where they fit (the change names no place: ask before fitting)"
 			}
 			w := fmt.Sprintf("%d washers, %d per spoke %s (%s)", c.Count, c.PerSpoke, where, side)
 			if c.ThicknessMM != nil {
