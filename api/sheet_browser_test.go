@@ -19,7 +19,7 @@ import (
 	"github.com/google/uuid"
 
 	"wheelbench/api/browsertest"
-	"wheelbench/demo"
+	"wheelbench/service/demo"
 	"wheelbench/service"
 )
 

@@ -6,7 +6,7 @@ import (
 	"io"
 	"log/slog"
 
-	"wheelbench/demo"
+	"wheelbench/service/demo"
 	"wheelbench/service"
 )
 
