@@ -49,6 +49,8 @@ func (s *Server) routeTable(g prometheus.Gatherer) []Route {
 		{Method: http.MethodPost, Path: "/v1/builds", Role: service.RoleWrite, Idempotent: true, SpecCheckOnError: true, handler: s.createBuild},
 		{Method: http.MethodGet, Path: "/v1/builds/{id}", Role: service.RoleRead, handler: s.getBuild},
 		{Method: http.MethodPatch, Path: "/v1/builds/{id}", Role: service.RoleWrite, handler: s.updateBuild},
+		{Method: http.MethodGet, Path: "/v1/builds/{id}/sheet", Role: service.RoleRead, handler: s.getBuildSheet},
+		{Method: http.MethodGet, Path: "/v1/builds/{id}/lacing.svg", Role: service.RoleRead, handler: s.getBuildLacing},
 		{Method: http.MethodGet, Path: "/v1/builds/{id}/tension-audits", Role: service.RoleRead, handler: s.listBuildAudits},
 		{Method: http.MethodPost, Path: "/v1/builds/{id}/tension-audits", Role: service.RoleWrite, Idempotent: true, handler: s.createBuildAudit},
 		{Method: http.MethodGet, Path: "/v1/price-list", Role: service.RoleRead, handler: s.getPriceList},

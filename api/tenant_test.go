@@ -24,6 +24,8 @@ var fixtures = map[string]fixture{
 	"PUT /v1/parts/{id}/stock":            partFixture(map[string]any{"levels": []any{}}),
 	"GET /v1/builds/{id}":                 buildFixture(nil),
 	"PATCH /v1/builds/{id}":               buildFixture(map[string]any{"notes": "x"}),
+	"GET /v1/builds/{id}/sheet":           buildFixture(nil),
+	"GET /v1/builds/{id}/lacing.svg":      buildFixture(nil),
 	"GET /v1/builds/{id}/tension-audits":  buildFixture(nil),
 	"POST /v1/builds/{id}/tension-audits": buildFixture(map[string]any{"calibration_id": uuid.New(), "readings": []map[string]any{{"side": "left", "spoke": 0, "reading": 300}}}),
 	"GET /v1/quotes/{id}":                 quoteFixture(),

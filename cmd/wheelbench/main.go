@@ -124,7 +124,7 @@ func run(ctx context.Context, args []string, getenv func(string) string, stdout,
 		fmt.Fprintln(stdout, "migrations applied")
 		return nil
 	case "demo":
-		return demo(ctx, cfg, getenv, log, stdout)
+		return runDemo(ctx, cfg, getenv, log, stdout)
 	case "admin":
 		return admin(ctx, cfg, getenv, log, args[1:], stdout)
 	case "help", "-h", "--help":

@@ -1,4 +1,4 @@
-package main
+package demo
 
 import (
 	"context"
@@ -69,13 +69,13 @@ type demoBuild struct {
 }
 
 var demoBuilds = []demoBuild{
-	{"DEMO-CARGO-1", demoLocations[0].ID, map[string]any{"spoke_count": 36, "hub_id": "DEMO-HUB-MOTOR36", "rim_id": "DEMO-RIM-406-36",
+	{"DEMO-CARGO-1", Locations[0].ID, map[string]any{"spoke_count": 36, "hub_id": "DEMO-HUB-MOTOR36", "rim_id": "DEMO-RIM-406-36",
 		"spoke_id": "DEMO-SPK-13G", "nipple_id": "DEMO-NIP-13G", "washer_ids": []any{"DEMO-WSH-08"}, "tyre_id": "DEMO-TYRE-406-55",
 		"crosses": map[string]any{"left": 1, "right": 1}, "target_tension_n": 1200, "frame_spacing_mm": 135}, true},
-	{"DEMO-TANDEM-1", demoLocations[1].ID, map[string]any{"spoke_count": 48, "hub_id": "DEMO-HUB-TANDEM48", "rim_id": "DEMO-RIM-559-48",
+	{"DEMO-TANDEM-1", Locations[1].ID, map[string]any{"spoke_count": 48, "hub_id": "DEMO-HUB-TANDEM48", "rim_id": "DEMO-RIM-559-48",
 		"spoke_id": "DEMO-SPK-20", "nipple_id": "DEMO-NIP-20", "tyre_id": "DEMO-TYRE-559-50",
 		"crosses": map[string]any{"left": 4, "right": 4}, "target_tension_n": 1150, "frame_spacing_mm": 145}, true},
-	{"DEMO-TOURING-1", demoLocations[2].ID, map[string]any{"spoke_count": 36, "hub_id": "DEMO-HUB-DYNAMO36", "rim_id": "DEMO-RIM-622-36",
+	{"DEMO-TOURING-1", Locations[2].ID, map[string]any{"spoke_count": 36, "hub_id": "DEMO-HUB-DYNAMO36", "rim_id": "DEMO-RIM-622-36",
 		"spoke_id": "DEMO-SPK-20", "nipple_id": "DEMO-NIP-20", "tyre_id": "DEMO-TYRE-622-42",
 		"crosses": map[string]any{"left": 3, "right": 3}, "target_tension_n": 1050, "frame_spacing_mm": 100}, false},
 }
@@ -155,7 +155,7 @@ func demoShop(ctx context.Context, svc *service.Service, p service.Principal) (p
 // 310 mm in 2 mm steps, other parts by the piece.
 func demoStock(ctx context.Context, svc *service.Service, p service.Principal, pt service.Part) error {
 	var levels []service.StockLevel
-	for _, l := range demoLocations {
+	for _, l := range Locations {
 		if pt.Kind == service.PartSpoke {
 			for mm := 100; mm <= 310; mm += 2 {
 				levels = append(levels, service.StockLevel{LocationID: l.ID, LengthMM: float64(mm), Quantity: 120})

@@ -1,4 +1,4 @@
-package main
+package demo
 
 import (
 	"context"
@@ -45,7 +45,7 @@ func demoTools(ctx context.Context, svc *service.Service, p service.Principal) (
 	if err != nil {
 		return 0, 0, err
 	}
-	for i, l := range demoLocations {
+	for i, l := range Locations {
 		toolID := demoID("tool/" + l.Code)
 		if _, err := svc.GetTool(ctx, p, toolID); errors.Is(err, service.ErrNotFound) {
 			_, err = svc.CreateTool(ctx, p, service.ToolInput{ID: toolID, LocationID: l.ID,
