@@ -323,6 +323,14 @@ var heldChecks = map[string]func(t *testing.T, h *held){
 		}, p)
 		h.want(h.do("PATCH", "/v1/builds/"+h.build[h.home].String(), h.key[service.RoleWrite], map[string]any{"notes": "x"}, "If-Match", "*"), 200)
 	},
+	"GET /v1/builds/{id}/sheet": func(t *testing.T, h *held) {
+		h.want(h.do("GET", "/v1/builds/"+h.build[h.other].String()+"/sheet", h.key[service.RoleRead], nil), 404).problem(t)
+		h.want(h.do("GET", "/v1/builds/"+h.build[h.home].String()+"/sheet", h.key[service.RoleRead], nil), 200)
+	},
+	"GET /v1/builds/{id}/lacing.svg": func(t *testing.T, h *held) {
+		h.want(h.do("GET", "/v1/builds/"+h.build[h.other].String()+"/lacing.svg", h.key[service.RoleRead], nil), 404).problem(t)
+		h.want(h.do("GET", "/v1/builds/"+h.build[h.home].String()+"/lacing.svg", h.key[service.RoleRead], nil), 200)
+	},
 	"GET /v1/builds/{id}/tension-audits": func(t *testing.T, h *held) {
 		h.want(h.do("GET", "/v1/builds/"+h.build[h.other].String()+"/tension-audits", h.key[service.RoleRead], nil), 404).problem(t)
 		h.want(h.do("GET", "/v1/builds/"+h.build[h.home].String()+"/tension-audits", h.key[service.RoleRead], nil), 200)
