@@ -14,6 +14,7 @@ import (
 	"strings"
 	"sync"
 	"testing"
+	"time"
 
 	"github.com/getkin/kin-openapi/openapi3filter"
 	"github.com/getkin/kin-openapi/routers"
@@ -34,6 +35,7 @@ type env struct {
 	http   *httptest.Server
 	svc    *service.Service
 	st     *store.Store
+	pool   *pgxpool.Pool
 	router routers.Router
 	// keys of organisation A by role, and an admin key of organisation B
 	keyA map[service.Role]string
@@ -90,7 +92,7 @@ func newEnvPool(t testing.TB, pool *pgxpool.Pool, opts ...func(*api.Config)) *en
 	if err != nil {
 		t.Fatal(err)
 	}
-	e := &env{t: t, srv: srv, svc: svc, st: st, router: router, keyA: map[service.Role]string{}, errLog: errLog}
+	e := &env{t: t, srv: srv, svc: svc, st: st, pool: pool, router: router, keyA: map[service.Role]string{}, errLog: errLog}
 	e.http = httptest.NewServer(srv.Handler())
 	t.Cleanup(e.http.Close)
 	ctx := context.Background()
@@ -266,4 +268,32 @@ func (e *env) want(r response, status int) response {
 		e.t.Fatalf("%s %s: status %d, want %d\n%s", r.Request.Method, r.Request.URL.Path, r.StatusCode, status, r.body)
 	}
 	return r
+}
+
+// settle waits until every transaction of the database server that began
+// before it was called has ended. The change feed serves only changes below
+// the server's oldest running transaction (its snapshot xmin), and other
+// test binaries share the server, so a count of the feed is complete only
+// after this.
+func (e *env) settle() {
+	e.t.Helper()
+	ctx := context.Background()
+	var now uint64
+	if err := e.pool.QueryRow(ctx, `SELECT pg_current_xact_id()::text::numeric::bigint`).Scan(&now); err != nil {
+		e.t.Fatal(err)
+	}
+	deadline := time.Now().Add(30 * time.Second)
+	for {
+		var xmin uint64
+		if err := e.pool.QueryRow(ctx, `SELECT pg_snapshot_xmin(pg_current_snapshot())::text::numeric::bigint`).Scan(&xmin); err != nil {
+			e.t.Fatal(err)
+		}
+		if xmin > now {
+			return
+		}
+		if time.Now().After(deadline) {
+			e.t.Fatalf("transactions older than %d still run after 30 s (xmin %d)", now, xmin)
+		}
+		time.Sleep(10 * time.Millisecond)
+	}
 }

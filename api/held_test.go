@@ -468,6 +468,7 @@ func heldFeed(t *testing.T, h *held) {
 			after = page.NextCursor
 		}
 	}
+	h.settle() // every change above committed is in the feed
 	whole, mine := feed(h.admin), feed(h.key[service.RoleRead])
 	seen := map[string]bool{}
 	for _, c := range mine {

@@ -419,9 +419,11 @@ func TestContentTypeRefused(t *testing.T) {
 	}
 }
 
-// changeCount is the number of changes in organisation A's feed.
+// changeCount is the number of changes in organisation A's feed, once
+// every transaction begun before the call has ended (settle).
 func (e *env) changeCount() int {
 	e.t.Helper()
+	e.settle()
 	n, after := 0, ""
 	for {
 		var page struct {

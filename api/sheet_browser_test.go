@@ -19,8 +19,8 @@ import (
 	"github.com/google/uuid"
 
 	"wheelbench/api/browsertest"
-	"wheelbench/service/demo"
 	"wheelbench/service"
+	"wheelbench/service/demo"
 )
 
 func init() {

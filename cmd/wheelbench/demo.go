@@ -6,8 +6,8 @@ import (
 	"io"
 	"log/slog"
 
-	"wheelbench/service/demo"
 	"wheelbench/service"
+	"wheelbench/service/demo"
 )
 
 // runDemo loads the invented demo shop (package demo) idempotently and
