@@ -4,6 +4,8 @@ import (
 	"fmt"
 	"math"
 	"strconv"
+
+	"wheelbench/service/spoke"
 )
 
 // Options are the defaults for unmeasured sizes. A zero field takes its
@@ -57,6 +59,7 @@ func (o Options) Compute(w Wheel) (Result, error) {
 
 // wheelBuf backs one wheel's optional outputs, allocated once.
 type wheelBuf struct {
+	sp     spoke.Resolved
 	groups [2]LengthGroup
 	val    [2][5]float64 // per side: tension, order, stock, end, exit angle
 }
@@ -108,6 +111,10 @@ func compute(w *Wheel, o *Options) (Result, error) {
 		}
 	}
 	res.Facts = facts(w, &r, &gl, &gr)
+	if w.Spoke != nil {
+		buf.sp = r.sp
+		res.Facts.Spoke = &buf.sp
+	}
 	if w.IncludeLacing {
 		res.Lacing = plan(r.n, &gl, &gr, &r)
 		res.KeySpoke = 1
@@ -233,7 +240,7 @@ func (l *errList) feasible(p string, s *side, g *sideGeom) {
 
 // facts gathers what the rule set judges.
 func facts(w *Wheel, r *resolved, gl, gr *sideGeom) Facts {
-	f := Facts{Kind: r.kind, Brake: r.brake, Driven: r.driven, HasSpoke: r.hasSpoke, Spoke: r.sp,
+	f := Facts{Kind: r.kind, Brake: r.brake, Driven: r.driven, HasSpoke: r.hasSpoke,
 		HeadMM: r.headD, HeadAssumed: w.Spoke == nil || w.Spoke.HeadDiameterMM == nil, TargetN: r.target, Stock: r.stock}
 	f.Sides[0], f.Sides[1] = sideFacts(&r.left, gl), sideFacts(&r.right, gr)
 	if o, sl, sr := w.Rim.SpokeHoleOffsetMM, w.Rim.StaggerMM.Left, w.Rim.StaggerMM.Right; o != 0 || sl != 0 || sr != 0 {

@@ -114,9 +114,10 @@ type Facts struct {
 	Driven      bool
 	// Sides: 0 is left, 1 is right.
 	Sides [2]SideFacts
-	// HasSpoke: the spoke was described; Spoke is it, resolved.
+	// HasSpoke: the spoke was described; Spoke is it, resolved (nil when
+	// not described).
 	HasSpoke bool
-	Spoke    spoke.Resolved
+	Spoke    *spoke.Resolved
 	// HeadMM is the J-bend head diameter used (HeadAssumed when estimated).
 	HeadMM      float64
 	HeadAssumed bool

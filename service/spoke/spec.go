@@ -370,12 +370,20 @@ const gaugeMatchMM = 0.05
 // GaugeFor returns the BS 3737 gauge nearest d within gaugeMatchMM, or 0.
 func GaugeFor(d float64) int {
 	best, bestDiff := 0, math.Inf(1)
-	for g, in := range gaugeInches {
-		if diff := math.Abs(in*MMPerInch - d); in > 0 && diff <= gaugeMatchMM && diff < bestDiff {
+	for g, mm := range gaugeMM {
+		if diff := math.Abs(mm - d); mm > 0 && diff <= gaugeMatchMM && diff < bestDiff {
 			best, bestDiff = g, diff
 		}
 	}
 	return best
 }
+
+// gaugeMM is gaugeInches in millimetres.
+var gaugeMM = func() (mm [len(gaugeInches)]float64) {
+	for g, in := range gaugeInches {
+		mm[g] = in * MMPerInch
+	}
+	return mm
+}()
 
 func finite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }

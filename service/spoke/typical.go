@@ -15,7 +15,7 @@ type Typical struct {
 
 // typicalByGauge: from memory. 56 TPI is the usual bicycle spoke pitch for
 // 13 to 15 gauge (from memory); thicker gauges have no typical pitch.
-var typicalByGauge = map[int]Typical{
+var typicalByGauge = [...]Typical{
 	15: {HeadDiameterMM: 3.7, ElbowLengthMM: 2.5, ThreadTPI: 56, ThreadLengthMM: 9},
 	14: {HeadDiameterMM: 4.0, ElbowLengthMM: 2.6, ThreadTPI: 56, ThreadLengthMM: 9.5},
 	13: {HeadDiameterMM: 4.5, ElbowLengthMM: 3.0, ThreadTPI: 56, ThreadLengthMM: 10},
@@ -26,8 +26,10 @@ var typicalByGauge = map[int]Typical{
 
 // TypicalFor returns the typical dimensions of a gauge.
 func TypicalFor(gauge int) (Typical, bool) {
-	t, ok := typicalByGauge[gauge]
-	return t, ok
+	if gauge < 0 || gauge >= len(typicalByGauge) || typicalByGauge[gauge].HeadDiameterMM == 0 {
+		return Typical{}, false
+	}
+	return typicalByGauge[gauge], true
 }
 
 // isoStressAreaFactor: the tensile stress area of a 60° thread of major
