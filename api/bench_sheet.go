@@ -7,7 +7,7 @@ import (
 	"github.com/labstack/echo/v4"
 
 	"wheelbench/api/sheet"
-	"wheelbench/service"
+	"wheelbench/service/field"
 )
 
 // sheetCSP holds a bench sheet to itself: inline CSS and SVG, no script,
@@ -24,7 +24,7 @@ func (s *Server) getBuildSheet(c echo.Context) error {
 	var paper sheet.Paper
 	if v, ok := c.QueryParams()["paper"]; ok && len(v) > 0 {
 		if paper, err = sheet.ParsePaper(v[0]); err != nil {
-			return service.Invalid("query:paper", "%s", err.Error())
+			return field.Invalid("query:paper", "%s", err.Error())
 		}
 	}
 	bs, err := s.svc.BuildSheet(c.Request().Context(), principal(c), id)

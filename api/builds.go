@@ -9,6 +9,7 @@ import (
 	"github.com/labstack/echo/v4"
 
 	"wheelbench/service"
+	"wheelbench/service/field"
 	"wheelbench/service/quote"
 )
 
@@ -104,7 +105,7 @@ func (s *Server) listBuilds(c echo.Context) error {
 	if v := c.QueryParam("location_id"); v != "" {
 		id, err := uuid.Parse(v)
 		if err != nil {
-			return service.Invalid("query:location_id", "location_id must be a UUID")
+			return field.Invalid("query:location_id", "location_id must be a UUID")
 		}
 		f.LocationID = &id
 	}
@@ -114,7 +115,7 @@ func (s *Server) listBuilds(c echo.Context) error {
 	if v := c.QueryParam("updated_after"); v != "" {
 		t, err := time.Parse(time.RFC3339Nano, v)
 		if err != nil {
-			return service.Invalid("query:updated_after", "updated_after must be an RFC 3339 time such as 2026-12-01T10:00:00Z")
+			return field.Invalid("query:updated_after", "updated_after must be an RFC 3339 time such as 2026-12-01T10:00:00Z")
 		}
 		f.UpdatedAfter = &t
 	}

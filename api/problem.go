@@ -12,6 +12,7 @@ import (
 	"github.com/labstack/echo/v4"
 
 	"wheelbench/service"
+	"wheelbench/service/field"
 )
 
 // Problem is an RFC 9457 problem details body.
@@ -30,14 +31,6 @@ type Problem struct {
 type FieldProblem struct {
 	Pointer string `json:"pointer"`
 	Message string `json:"message"`
-}
-
-// fieldError is what every package's field error offers (service.FieldError
-// and the pure packages' own types).
-type fieldError interface {
-	error
-	FieldPointer() string
-	IsUnprocessable() bool
 }
 
 // validationError is a set of field problems found by the HTTP layer itself
@@ -67,24 +60,6 @@ var statusOf = []struct {
 	{service.ErrGone, http.StatusGone},
 }
 
-// collectFieldErrors walks err's tree (errors.Join included) for field errors.
-func collectFieldErrors(err error, out []fieldError) []fieldError {
-	if fe, ok := err.(fieldError); ok {
-		return append(out, fe)
-	}
-	switch u := err.(type) {
-	case interface{ Unwrap() []error }:
-		for _, e := range u.Unwrap() {
-			out = collectFieldErrors(e, out)
-		}
-	case interface{ Unwrap() error }:
-		if e := u.Unwrap(); e != nil {
-			out = collectFieldErrors(e, out)
-		}
-	}
-	return out
-}
-
 // toProblem turns any error into a problem; internal reports whether it is a
 // server fault (logged, with a generic title).
 func toProblem(err error) (p Problem, internal bool) {
@@ -100,17 +75,17 @@ func toProblem(err error) (p Problem, internal bool) {
 	if errors.As(err, &ve) {
 		return Problem{Status: ve.status, Title: http.StatusText(ve.status), Detail: ve.detail, Errors: ve.fields}, false
 	}
-	if fes := collectFieldErrors(err, nil); len(fes) > 0 {
+	if fes := field.All(err); len(fes) > 0 {
 		status := http.StatusBadRequest
 		for _, fe := range fes {
-			if fe.IsUnprocessable() {
+			if fe.Unprocessable {
 				status = http.StatusUnprocessableEntity
 			}
 		}
 		p := Problem{Status: status, Title: http.StatusText(status)}
 		for _, fe := range fes {
 			// Every field is listed, so that a client can mend them all at once.
-			p.Errors = append(p.Errors, FieldProblem{Pointer: fe.FieldPointer(), Message: messageOf(fe)})
+			p.Errors = append(p.Errors, FieldProblem{Pointer: fe.Pointer, Message: fe.Message})
 		}
 		if status == http.StatusUnprocessableEntity {
 			p.Detail = "The request is well-formed but cannot be carried out: see errors."
@@ -156,16 +131,6 @@ func toProblem(err error) (p Problem, internal bool) {
 			Detail: "The request took too long; retry shortly."}, false
 	}
 	return Problem{Status: http.StatusInternalServerError, Title: http.StatusText(http.StatusInternalServerError)}, true
-}
-
-// messageOf is a field error's message without its pointer prefix.
-func messageOf(fe fieldError) string {
-	type messager interface{ FieldMessage() string }
-	if m, ok := fe.(messager); ok {
-		return m.FieldMessage()
-	}
-	msg := fe.Error()
-	return strings.TrimPrefix(msg, fe.FieldPointer()+": ")
 }
 
 // detailOf is the sentence a problem says for err, which wraps sentinel:

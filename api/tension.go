@@ -10,6 +10,7 @@ import (
 	"github.com/labstack/echo/v4"
 
 	"wheelbench/service"
+	"wheelbench/service/field"
 	"wheelbench/service/spoke"
 	"wheelbench/strictjson"
 )
@@ -263,7 +264,7 @@ func (s *Server) getCalibrationChart(c echo.Context) error {
 		}
 		f, err := strconv.ParseFloat(v, 64)
 		if err != nil {
-			return 0, service.Invalid("query:"+name, "%s must be a number", name)
+			return 0, field.Invalid("query:"+name, "%s must be a number", name)
 		}
 		return f, nil
 	}

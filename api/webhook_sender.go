@@ -95,7 +95,7 @@ func (s *WebhookSender) control(network, address string, _ syscall.RawConn) erro
 // response status (a redirect's 3xx included, as redirects are not
 // followed) and a nil error whenever a response arrived; the body is read
 // up to a small limit and discarded. The error is non-nil when no response
-// came: a *webhook.FieldError when url fails webhook.CheckURL, an error
+// came: a *field.Error when url fails webhook.CheckURL, an error
 // wrapping *webhook.AddrError when a resolved address is refused, a
 // timeout, or any other transport failure.
 func (s *WebhookSender) Send(ctx context.Context, url string, h webhook.HeaderSet, body []byte) (int, error) {

@@ -14,6 +14,7 @@ import (
 	"testing"
 	"time"
 
+	"wheelbench/service/field"
 	"wheelbench/service/webhook"
 )
 
@@ -125,9 +126,9 @@ func TestWebhookSenderRefusesPrivateURLs(t *testing.T) {
 		"http://2130706433" + p + "/", // 127.0.0.1 as one number
 	} {
 		status, err := s.Send(context.Background(), url, h, []byte(`{}`))
-		var fe *webhook.FieldError
-		if !errors.As(err, &fe) || fe.FieldPointer() != "/url" || status != 0 {
-			t.Errorf("Send(%s) = %d, %v; want 0 and a FieldError at /url", url, status, err)
+		var fe *field.Error
+		if !errors.As(err, &fe) || fe.Pointer != "/url" || status != 0 {
+			t.Errorf("Send(%s) = %d, %v; want 0 and a field error at /url", url, status, err)
 		}
 	}
 	if n := calls.Load(); n != 0 {

@@ -8,6 +8,8 @@ import (
 	"unicode/utf8"
 
 	"github.com/google/uuid"
+
+	"wheelbench/service/field"
 )
 
 // BuildTensionAudit is a stored tension audit of a built wheel: the
@@ -40,7 +42,7 @@ type BuildAuditInput struct {
 // ratio, and keeps the result with the build, superseding its last audit.
 func (s *Service) RecordBuildAudit(ctx context.Context, p Principal, buildID uuid.UUID, in BuildAuditInput) (BuildTensionAudit, error) {
 	if utf8.RuneCountInString(in.Notes) > 10000 {
-		return BuildTensionAudit{}, Invalid("/notes", "notes must be at most 10000 characters")
+		return BuildTensionAudit{}, field.Invalid("/notes", "notes must be at most 10000 characters")
 	}
 	b, err := s.reachableBuild(ctx, p, buildID)
 	if err != nil {
@@ -48,13 +50,13 @@ func (s *Service) RecordBuildAudit(ctx context.Context, p Principal, buildID uui
 	}
 	cal, err := s.store.GetCalibration(ctx, p.OrgID, in.CalibrationID)
 	if errors.Is(err, ErrNotFound) {
-		return BuildTensionAudit{}, Unprocessable("/calibration_id", "no such calibration in this organisation")
+		return BuildTensionAudit{}, field.Unprocessable("/calibration_id", "no such calibration in this organisation")
 	}
 	if err != nil {
 		return BuildTensionAudit{}, err
 	}
 	if cal.Model == nil {
-		return BuildTensionAudit{}, Unprocessable("/calibration_id", "the calibration has no fitted model")
+		return BuildTensionAudit{}, field.Unprocessable("/calibration_id", "the calibration has no fitted model")
 	}
 	res := b.Snapshot.Resolved
 	// The same rule as POST /v1/tension-audits: the target is the tighter

@@ -11,6 +11,7 @@ import (
 
 	"github.com/google/uuid"
 
+	"wheelbench/service/field"
 	"wheelbench/service/fit"
 	"wheelbench/service/geometry"
 	"wheelbench/service/spoke"
@@ -163,51 +164,26 @@ type BuildFilter struct {
 	UpdatedAfter *time.Time
 }
 
-// prefixPointers moves every field error's pointer under prefix.
-func prefixPointers(err error, prefix string) error {
-	var out []error
-	var walk func(e error)
-	walk = func(e error) {
-		if fe, ok := e.(interface {
-			error
-			FieldPointer() string
-			IsUnprocessable() bool
-		}); ok {
-			out = append(out, &FieldError{Pointer: prefix + fe.FieldPointer(), Message: strings.TrimPrefix(fe.Error(), fe.FieldPointer()+": "), Unprocessable: fe.IsUnprocessable()})
-			return
-		}
-		if u, ok := e.(interface{ Unwrap() []error }); ok {
-			for _, x := range u.Unwrap() {
-				walk(x)
-			}
-			return
-		}
-		out = append(out, e)
-	}
-	walk(err)
-	return errors.Join(out...)
-}
-
 // resolvePart returns the part named inline or by id (nil when neither),
 // with the catalog id when it came from the catalog.
-func resolvePart[T any](ctx context.Context, s *Service, orgID uuid.UUID, kind PartKind, inline *T, id *uuid.UUID, field string) (*T, *uuid.UUID, error) {
+func resolvePart[T any](ctx context.Context, s *Service, orgID uuid.UUID, kind PartKind, inline *T, id *uuid.UUID, member string) (*T, *uuid.UUID, error) {
 	switch {
 	case inline != nil && id != nil:
-		return nil, nil, Invalid("/spec/"+field+"_id", "give %s inline or as %s_id, not both", field, field)
+		return nil, nil, field.Invalid("/spec/"+member+"_id", "give %s inline or as %s_id, not both", member, member)
 	case id != nil:
 		p, err := s.store.GetPart(ctx, orgID, *id)
 		if errors.Is(err, ErrNotFound) {
-			return nil, nil, Unprocessable("/spec/"+field+"_id", "no such part in this organisation's catalog")
+			return nil, nil, field.Unprocessable("/spec/"+member+"_id", "no such part in this organisation's catalog")
 		}
 		if err != nil {
 			return nil, nil, err
 		}
 		if p.Kind != kind {
-			return nil, nil, Unprocessable("/spec/"+field+"_id", "part %s is a %s, not a %s", id, p.Kind, kind)
+			return nil, nil, field.Unprocessable("/spec/"+member+"_id", "part %s is a %s, not a %s", id, p.Kind, kind)
 		}
 		dims := new(T)
 		if err := strictjson.Unmarshal(p.Dimensions, dims); err != nil {
-			return nil, nil, Unprocessable("/spec/"+field+"_id", "part %s's dimensions do not describe a %s", id, kind)
+			return nil, nil, field.Unprocessable("/spec/"+member+"_id", "part %s's dimensions do not describe a %s", id, kind)
 		}
 		return dims, id, nil
 	}
@@ -217,15 +193,15 @@ func resolvePart[T any](ctx context.Context, s *Service, orgID uuid.UUID, kind P
 // specPart is resolvePart for one of a spec's parts: it records the
 // catalog id in *catalogID and any error, or the part's absence when it is
 // required, in *errs.
-func specPart[T any](ctx context.Context, s *Service, orgID uuid.UUID, kind PartKind, inline *T, id *uuid.UUID, field string,
+func specPart[T any](ctx context.Context, s *Service, orgID uuid.UUID, kind PartKind, inline *T, id *uuid.UUID, member string,
 	required bool, catalogID **uuid.UUID, errs *[]error) *T {
-	v, cid, err := resolvePart(ctx, s, orgID, kind, inline, id, field)
+	v, cid, err := resolvePart(ctx, s, orgID, kind, inline, id, member)
 	*catalogID = cid
 	switch {
 	case err != nil:
 		*errs = append(*errs, err)
 	case v == nil && required:
-		*errs = append(*errs, Invalid("/spec/"+field, "give the %s inline or as %s_id", field, field))
+		*errs = append(*errs, field.Invalid("/spec/"+member, "give the %s inline or as %s_id", member, member))
 	}
 	return v
 }
@@ -235,7 +211,7 @@ func specPart[T any](ctx context.Context, s *Service, orgID uuid.UUID, kind Part
 func (s *Service) resolveSpec(ctx context.Context, orgID, locationID uuid.UUID, raw json.RawMessage) (CompatibilityInput, BuildParts, string, error) {
 	var spec BuildSpec
 	if err := strictjson.Unmarshal(raw, &spec); err != nil {
-		return CompatibilityInput{}, BuildParts{}, "", prefixPointers(err, "/spec")
+		return CompatibilityInput{}, BuildParts{}, "", field.Under("/spec", err)
 	}
 	var parts BuildParts
 	var errs []error
@@ -250,15 +226,12 @@ func (s *Service) resolveSpec(ctx context.Context, orgID, locationID uuid.UUID, 
 	}
 	if len(spec.WasherIDs) > 0 {
 		if spec.Washers != nil {
-			errs = append(errs, Invalid("/spec/washer_ids", "give washers inline or as washer_ids, not both"))
+			errs = append(errs, field.Invalid("/spec/washer_ids", "give washers inline or as washer_ids, not both"))
 		}
 		washers = make([]fit.Washer, 0, len(spec.WasherIDs))
 		for i, id := range spec.WasherIDs {
 			w, _, err := resolvePart[fit.Washer](ctx, s, orgID, PartWasher, nil, &id, "washer")
-			var fe *FieldError
-			if errors.As(err, &fe) {
-				fe.Pointer = fmt.Sprintf("/spec/washer_ids/%d", i)
-			}
+			err = field.Map(err, func(string) string { return fmt.Sprintf("/spec/washer_ids/%d", i) })
 			if err != nil {
 				errs = append(errs, err)
 				continue
@@ -299,13 +272,13 @@ func (s *Service) resolveSpec(ctx context.Context, orgID, locationID uuid.UUID, 
 // stores it as a draft.
 func (s *Service) CreateBuild(ctx context.Context, p Principal, in BuildInput) (Build, error) {
 	if utf8.RuneCountInString(in.ExternalRef) > 200 {
-		return Build{}, Invalid("/external_ref", "external_ref must be at most 200 characters")
+		return Build{}, field.Invalid("/external_ref", "external_ref must be at most 200 characters")
 	}
 	// An org-scoped read, so that a location of another organisation is a
 	// 422 naming the field; the database's foreign key holds it as well.
 	_, cal, err := s.locationWithCalibration(ctx, p.OrgID, in.LocationID)
 	if errors.Is(err, ErrNotFound) || (err == nil && !p.Reaches(in.LocationID)) {
-		return Build{}, Unprocessable("/location_id", "no such location in this organisation")
+		return Build{}, field.Unprocessable("/location_id", "no such location in this organisation")
 	} else if err != nil {
 		return Build{}, err
 	}
@@ -315,7 +288,7 @@ func (s *Service) CreateBuild(ctx context.Context, p Principal, in BuildInput) (
 	}
 	rep, err := s.CheckCompatibility(resolved)
 	if err != nil {
-		return Build{}, prefixPointers(err, "/spec")
+		return Build{}, field.Under("/spec", err)
 	}
 	if proposesStandardWasher(rep) {
 		// A washer to buy is proposed: the catalog's own is proposed
@@ -325,7 +298,7 @@ func (s *Service) CreateBuild(ctx context.Context, p Principal, in BuildInput) (
 		}
 		if len(resolved.CatalogWashers) > 0 {
 			if rep, err = s.CheckCompatibility(resolved); err != nil {
-				return Build{}, prefixPointers(err, "/spec")
+				return Build{}, field.Under("/spec", err)
 			}
 		}
 	}
@@ -462,7 +435,7 @@ func (s *Service) reachableBuild(ctx context.Context, p Principal, id uuid.UUID)
 // lists that location's.
 func (s *Service) ListBuilds(ctx context.Context, p Principal, f BuildFilter, page Page) ([]Build, error) {
 	if f.Status != "" && !f.Status.Valid() {
-		return nil, Invalid("query:status", "status must be one of draft, quoted, ordered, in_progress, done, cancelled")
+		return nil, field.Invalid("query:status", "status must be one of draft, quoted, ordered, in_progress, done, cancelled")
 	}
 	if p.Bound() {
 		if f.LocationID != nil && *f.LocationID != *p.LocationID {
@@ -477,10 +450,10 @@ func (s *Service) ListBuilds(ctx context.Context, p Principal, f BuildFilter, pa
 // its notes, if ifMatch is its current ETag. An illegal move is ErrConflict.
 func (s *Service) UpdateBuild(ctx context.Context, p Principal, id uuid.UUID, ifMatch string, patch BuildPatch) (Build, error) {
 	if patch.Status != nil && !patch.Status.Valid() {
-		return Build{}, Invalid("/status", "status must be one of draft, quoted, ordered, in_progress, done, cancelled")
+		return Build{}, field.Invalid("/status", "status must be one of draft, quoted, ordered, in_progress, done, cancelled")
 	}
 	if patch.Notes != nil && utf8.RuneCountInString(*patch.Notes) > 10000 {
-		return Build{}, Invalid("/notes", "notes must be at most 10000 characters")
+		return Build{}, field.Invalid("/notes", "notes must be at most 10000 characters")
 	}
 	cur, err := s.reachableBuild(ctx, p, id)
 	if err != nil {

@@ -32,11 +32,4 @@ type SpokeLengthResult struct {
 	Cautions []string `json:"cautions"`
 }
 
-// fieldError is what the pure packages' field errors offer.
-type fieldError interface {
-	error
-	FieldPointer() string
-	IsUnprocessable() bool
-}
-
 func ptr(x float64) *float64 { return &x }

@@ -13,7 +13,7 @@ const MaxBatchWheels = 10000
 
 // SpokeLengths computes one wheel: both sides' lengths, angles, tensions,
 // and the rule set's findings and cautions on them. Bad or impossible input
-// comes back as *geometry.FieldError values (400 or 422), never as NaN or
+// comes back as *field.Error values (400 or 422), never as NaN or
 // Inf.
 func (s *Service) SpokeLengths(w geometry.Wheel) (SpokeLengthResult, error) {
 	res, err := geometry.Compute(w)

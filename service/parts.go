@@ -14,6 +14,7 @@ import (
 
 	"github.com/google/uuid"
 
+	"wheelbench/service/field"
 	"wheelbench/service/fit"
 	"wheelbench/service/geometry"
 	"wheelbench/service/spoke"
@@ -128,20 +129,20 @@ func decodeDimensions(kind PartKind, raw json.RawMessage) (json.RawMessage, erro
 	case PartTyre:
 		target = &fit.Tyre{}
 	default:
-		return nil, Invalid("/kind", "kind must be hub, rim, spoke, nipple, washer or tyre")
+		return nil, field.Invalid("/kind", "kind must be hub, rim, spoke, nipple, washer or tyre")
 	}
 	if len(bytes.TrimSpace(raw)) == 0 || bytes.Equal(bytes.TrimSpace(raw), []byte("null")) {
-		return nil, Invalid("/dimensions", "dimensions are required: the %s object the compatibility check takes", kind)
+		return nil, field.Invalid("/dimensions", "dimensions are required: the %s object the compatibility check takes", kind)
 	}
 	if err := strictjson.Unmarshal(raw, target); err != nil {
-		return nil, prefixPointers(err, "/dimensions")
+		return nil, field.Under("/dimensions", err)
 	}
 	// Every number in the object must be finite and not negative; sizes the
 	// fit check needs are checked there when a build uses the part.
 	var generic any
 	_ = json.Unmarshal(raw, &generic)
 	if ptr, ok := firstBadNumber(generic, "/dimensions"); !ok {
-		return nil, Invalid(ptr, "must be a finite number, not negative")
+		return nil, field.Invalid(ptr, "must be a finite number, not negative")
 	}
 	out, err := json.Marshal(target)
 	if err != nil {
@@ -175,16 +176,16 @@ func firstBadNumber(v any, at string) (string, bool) {
 func validatePartFields(sku, name *string, price *int64, currency *string) error {
 	var errs []error
 	if sku != nil && !skuRE.MatchString(*sku) {
-		errs = append(errs, Invalid("/sku", "sku must be 1 to 64 letters, digits, '.', '_', '/' or '-', starting with a letter or digit"))
+		errs = append(errs, field.Invalid("/sku", "sku must be 1 to 64 letters, digits, '.', '_', '/' or '-', starting with a letter or digit"))
 	}
 	if name != nil && (strings.TrimSpace(*name) == "" || utf8.RuneCountInString(*name) > 200) {
-		errs = append(errs, Invalid("/name", "name must be 1 to 200 characters"))
+		errs = append(errs, field.Invalid("/name", "name must be 1 to 200 characters"))
 	}
 	if price != nil && (*price < 0 || *price > 1e12) {
-		errs = append(errs, Invalid("/price_minor", "price_minor must be from 0 to 10^12 minor units"))
+		errs = append(errs, field.Invalid("/price_minor", "price_minor must be from 0 to 10^12 minor units"))
 	}
 	if currency != nil && !currencyRE.MatchString(*currency) {
-		errs = append(errs, Invalid("/currency", "currency must be an ISO 4217 code such as EUR"))
+		errs = append(errs, field.Invalid("/currency", "currency must be an ISO 4217 code such as EUR"))
 	}
 	return errors.Join(errs...)
 }
@@ -203,7 +204,7 @@ func (s *Service) CreatePart(ctx context.Context, p Principal, in PartInput) (Pa
 		PriceMinor: in.PriceMinor, Currency: in.Currency, Dimensions: dims, Version: 1, CreatedAt: now, UpdatedAt: now}
 	if err := s.store.CreatePart(ctx, part); err != nil {
 		if errors.Is(err, ErrConflict) {
-			return Part{}, Unprocessable("/sku", "another part already has this sku")
+			return Part{}, field.Unprocessable("/sku", "another part already has this sku")
 		}
 		return Part{}, err
 	}
@@ -218,7 +219,7 @@ func (s *Service) GetPart(ctx context.Context, p Principal, id uuid.UUID) (Part,
 // ListParts lists the catalog by id.
 func (s *Service) ListParts(ctx context.Context, p Principal, f PartFilter, page Page) ([]Part, error) {
 	if f.Kind != "" && !f.Kind.Valid() {
-		return nil, Invalid("query:kind", "kind must be hub, rim, spoke, nipple, washer or tyre")
+		return nil, field.Invalid("query:kind", "kind must be hub, rim, spoke, nipple, washer or tyre")
 	}
 	return s.store.ListParts(ctx, p.OrgID, f, page)
 }
@@ -242,7 +243,7 @@ func (s *Service) UpdatePart(ctx context.Context, p Principal, id uuid.UUID, ifM
 	}
 	out, err := s.store.UpdatePart(ctx, p.OrgID, id, cur.Version, patch)
 	if errors.Is(err, ErrConflict) {
-		return Part{}, Unprocessable("/sku", "another part already has this sku")
+		return Part{}, field.Unprocessable("/sku", "another part already has this sku")
 	}
 	return out, err
 }
@@ -299,24 +300,24 @@ func (s *Service) PutPartStock(ctx context.Context, p Principal, id uuid.UUID, i
 	for i, l := range levels {
 		at := fmt.Sprintf("/levels/%d", i)
 		if l.Quantity < 0 || l.Quantity > maxStockQuantity {
-			errs = append(errs, Invalid(at+"/quantity", "quantity must be from 0 to %d", maxStockQuantity))
+			errs = append(errs, field.Invalid(at+"/quantity", "quantity must be from 0 to %d", maxStockQuantity))
 		}
 		if part.Kind == PartSpoke {
 			if !(l.LengthMM > 0 && l.LengthMM <= 1000) || math.Abs(l.LengthMM*10-math.Round(l.LengthMM*10)) > 1e-9 {
-				errs = append(errs, Invalid(at+"/length_mm", "a spoke's stock needs length_mm, above 0 and at most 1000, in steps of 0.1 mm"))
+				errs = append(errs, field.Invalid(at+"/length_mm", "a spoke's stock needs length_mm, above 0 and at most 1000, in steps of 0.1 mm"))
 			}
 		} else if l.LengthMM != 0 {
-			errs = append(errs, Invalid(at+"/length_mm", "only spokes are stocked by length"))
+			errs = append(errs, field.Invalid(at+"/length_mm", "only spokes are stocked by length"))
 		}
 		key := StockLevel{LocationID: l.LocationID, LengthMM: l.LengthMM}
 		if seen[key] {
-			errs = append(errs, Invalid(at, "the same location and length appear twice"))
+			errs = append(errs, field.Invalid(at, "the same location and length appear twice"))
 		}
 		seen[key] = true
 		if !p.Reaches(l.LocationID) {
-			errs = append(errs, Unprocessable(at+"/location_id", "no such location in this organisation"))
+			errs = append(errs, field.Unprocessable(at+"/location_id", "no such location in this organisation"))
 		} else if _, err := s.store.GetLocation(ctx, p.OrgID, l.LocationID); errors.Is(err, ErrNotFound) {
-			errs = append(errs, Unprocessable(at+"/location_id", "no such location in this organisation"))
+			errs = append(errs, field.Unprocessable(at+"/location_id", "no such location in this organisation"))
 		} else if err != nil {
 			return PartStock{}, err
 		}

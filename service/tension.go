@@ -8,6 +8,7 @@ import (
 
 	"github.com/google/uuid"
 
+	"wheelbench/service/field"
 	"wheelbench/service/tension"
 )
 
@@ -49,7 +50,7 @@ type InlineCalibration struct {
 func (s *Service) modelFor(ctx context.Context, p Principal, ref CalibrationRef) (m *TensionModel, cal *Calibration, err error) {
 	switch {
 	case ref.ID != nil && ref.Inline != nil:
-		return nil, nil, Invalid("/calibration", "give calibration_id or an inline calibration, not both")
+		return nil, nil, field.Invalid("/calibration", "give calibration_id or an inline calibration, not both")
 	case ref.ID != nil:
 		c, err := s.store.GetCalibration(ctx, p.OrgID, *ref.ID)
 		if errors.Is(err, ErrNotFound) {
@@ -65,34 +66,20 @@ func (s *Service) modelFor(ctx context.Context, p Principal, ref CalibrationRef)
 	case ref.Inline != nil:
 		m, err := tension.Fit(tension.Calibration{Source: ref.Inline.Source, Columns: ref.Inline.Columns}, ref.Inline.Tool)
 		if err != nil {
-			return nil, nil, inlinePointers(err)
+			return nil, nil, field.Map(err, inlinePointer)
 		}
 		return m, nil, nil
 	}
-	return nil, nil, Invalid("/calibration_id", "give calibration_id or an inline calibration")
+	return nil, nil, field.Invalid("/calibration_id", "give calibration_id or an inline calibration")
 }
 
-// inlinePointers places Fit's pointers inside the request body: the tool
+// inlinePointer places a pointer of Fit inside the request body: the tool
 // facts under /calibration/tool, everything else under /calibration.
-func inlinePointers(err error) error {
-	if multi, ok := err.(interface{ Unwrap() []error }); ok {
-		var out []error
-		for _, e := range multi.Unwrap() {
-			out = append(out, inlinePointers(e))
-		}
-		return errors.Join(out...)
+func inlinePointer(p string) string {
+	if p == "/unit_mm" || p == "/measured_span_mm" {
+		return "/calibration/tool" + p
 	}
-	var fe *tension.FieldError
-	if !errors.As(err, &fe) {
-		return err
-	}
-	c := *fe
-	if c.Pointer == "/unit_mm" || c.Pointer == "/measured_span_mm" {
-		c.Pointer = "/calibration/tool" + c.Pointer
-	} else {
-		c.Pointer = "/calibration" + c.Pointer
-	}
-	return &c
+	return "/calibration" + p
 }
 
 // ConversionOutput is a conversion's answer and the stored calibration
@@ -153,30 +140,14 @@ func (s *Service) CalibrationChart(ctx context.Context, p Principal, id uuid.UUI
 	}
 	svg, err := m.Chart(spec, tension.ChartHeading{ToolLabel: tool.Label, ToolSerial: tool.Serial,
 		CalibrationVersion: cal.Version, Source: cal.Source, Published: cal.CreatedAt})
-	return svg, queryPointers(err)
+	return svg, field.Map(err, queryPointer)
 }
 
-// queryPointers turns the chart's "/spoke/NAME" pointers into "query:NAME".
-func queryPointers(err error) error {
-	if err == nil {
-		return nil
-	}
-	if multi, ok := err.(interface{ Unwrap() []error }); ok {
-		var out []error
-		for _, e := range multi.Unwrap() {
-			out = append(out, queryPointers(e))
-		}
-		return errors.Join(out...)
-	}
-	var fe *tension.FieldError
-	if !errors.As(err, &fe) {
-		return err
-	}
-	c := *fe
-	name := strings.TrimPrefix(strings.TrimPrefix(c.Pointer, "/spoke"), "/")
+// queryPointer turns the chart's "/spoke/NAME" pointers into "query:NAME".
+func queryPointer(p string) string {
+	name := strings.TrimPrefix(strings.TrimPrefix(p, "/spoke"), "/")
 	if name == "" {
 		name = "diameter_mm"
 	}
-	c.Pointer = "query:" + name
-	return &c
+	return "query:" + name
 }

@@ -13,7 +13,7 @@
 //   - anything after the one JSON value;
 //   - nesting deeper than 10000 arrays and objects (the library's bound).
 //
-// Its errors are *Error values: a pointer and a message written for the
+// Its errors are *field.Error values: a pointer and a message written for the
 // integrator, never a Go type name. It imports only the JSON library.
 package strictjson
 
@@ -30,25 +30,9 @@ import (
 
 	"github.com/go-json-experiment/json"
 	"github.com/go-json-experiment/json/jsontext"
+
+	"wheelbench/service/field"
 )
-
-// Error is one refused value: Pointer is an RFC 6901 pointer into the
-// document ("" for the document itself), Message says what is wrong.
-type Error struct {
-	Pointer string
-	Message string
-}
-
-func (e *Error) Error() string { return e.Pointer + ": " + e.Message }
-
-// FieldPointer returns the JSON pointer of the refused value.
-func (e *Error) FieldPointer() string { return e.Pointer }
-
-// FieldMessage returns the message without the pointer.
-func (e *Error) FieldMessage() string { return e.Message }
-
-// IsUnprocessable is false: a document the policy refuses is malformed (400).
-func (e *Error) IsUnprocessable() bool { return false }
 
 // Nullable is implemented by the few types that give JSON null a meaning
 // (a PATCH member whose null removes a value). Every other type refuses null.
@@ -96,11 +80,11 @@ func Check(b []byte) error {
 		switch tok.Kind() {
 		case '0':
 			if f, err := tok.Float(); err != nil || math.IsInf(f, 0) {
-				return &Error{Pointer: string(dec.StackPointer()), Message: outOfRangeFloat}
+				return &field.Error{Pointer: string(dec.StackPointer()), Message: outOfRangeFloat}
 			}
 		case '"':
 			if strings.IndexByte(tok.String(), 0) >= 0 {
-				return &Error{Pointer: string(dec.StackPointer()), Message: nulMessage}
+				return &field.Error{Pointer: string(dec.StackPointer()), Message: nulMessage}
 			}
 		}
 		if dec.StackDepth() == 0 {
@@ -108,7 +92,7 @@ func Check(b []byte) error {
 		}
 	}
 	if _, err := dec.ReadToken(); err == nil {
-		return &Error{Message: "the body has data after its JSON value"}
+		return &field.Error{Message: "the body has data after its JSON value"}
 	} else if !errors.Is(err, io.EOF) {
 		return translate(err)
 	}
@@ -134,12 +118,12 @@ func checkNUL(b []byte) error {
 			return nil // already decoded once: only the end is left
 		}
 		if tok.Kind() == '"' && strings.IndexByte(tok.String(), 0) >= 0 {
-			return &Error{Pointer: string(dec.StackPointer()), Message: nulMessage}
+			return &field.Error{Pointer: string(dec.StackPointer()), Message: nulMessage}
 		}
 	}
 }
 
-// translate turns the JSON library's errors into *Error. An error that
+// translate turns the JSON library's errors into *field.Error. An error that
 // is not the library's (one a type's own decoder returned) keeps its
 // pointer and text when it already has a pointer of its own.
 func translate(err error) error {
@@ -147,7 +131,7 @@ func translate(err error) error {
 	if errors.As(err, &sem) {
 		return semantic(sem)
 	}
-	var fe *Error
+	var fe *field.Error
 	if errors.As(err, &fe) {
 		return fe
 	}
@@ -156,51 +140,51 @@ func translate(err error) error {
 		ptr := string(syn.JSONPointer)
 		switch {
 		case errors.Is(syn.Err, jsontext.ErrDuplicateName):
-			return &Error{Pointer: ptr, Message: "duplicate member name"}
+			return &field.Error{Pointer: ptr, Message: "duplicate member name"}
 		case syn.Err != nil && strings.Contains(syn.Err.Error(), "UTF-8"):
-			return &Error{Pointer: ptr, Message: "is not valid UTF-8"}
+			return &field.Error{Pointer: ptr, Message: "is not valid UTF-8"}
 		case errors.Is(syn.Err, io.ErrUnexpectedEOF):
-			return &Error{Message: "the body is empty or cut short"}
+			return &field.Error{Message: "the body is empty or cut short"}
 		case syn.Err != nil && strings.Contains(syn.Err.Error(), "after top-level value"):
-			return &Error{Message: "the body has data after its JSON value"}
+			return &field.Error{Message: "the body has data after its JSON value"}
 		case syn.Err != nil && strings.Contains(syn.Err.Error(), "exceeded max depth"):
 			// The library's bound; its pointer would be 10,000 segments long.
-			return &Error{Message: "the body nests arrays and objects more than 10000 deep"}
+			return &field.Error{Message: "the body nests arrays and objects more than 10000 deep"}
 		}
-		return &Error{Pointer: ptr, Message: fmt.Sprintf("is not valid JSON (at byte %d)", syn.ByteOffset)}
+		return &field.Error{Pointer: ptr, Message: fmt.Sprintf("is not valid JSON (at byte %d)", syn.ByteOffset)}
 	}
 	if errors.Is(err, io.EOF) || errors.Is(err, io.ErrUnexpectedEOF) {
-		return &Error{Message: "the body is empty or cut short"}
+		return &field.Error{Message: "the body is empty or cut short"}
 	}
-	return &Error{Message: "the body could not be read"}
+	return &field.Error{Message: "the body could not be read"}
 }
 
 func semantic(e *json.SemanticError) error {
 	ptr := string(e.JSONPointer)
-	var inner *Error
+	var inner *field.Error
 	switch {
 	case errors.As(e.Err, &inner):
 		// A type's own decoder used this package: its pointer is relative
 		// to the value it was given.
-		return &Error{Pointer: ptr + inner.Pointer, Message: inner.Message}
+		return &field.Error{Pointer: ptr + inner.Pointer, Message: inner.Message}
 	case errors.Is(e.Err, json.ErrUnknownName):
-		return &Error{Pointer: ptr, Message: "unknown member (names are exact and case-sensitive)"}
+		return &field.Error{Pointer: ptr, Message: "unknown member (names are exact and case-sensitive)"}
 	case errors.Is(e.Err, errNull):
-		return &Error{Pointer: ptr, Message: "must not be null"}
+		return &field.Error{Pointer: ptr, Message: "must not be null"}
 	}
 	want := wantOf(e.GoType)
 	switch {
 	case e.JSONKind != 0 && e.Err == nil:
-		return &Error{Pointer: ptr, Message: fmt.Sprintf("must be %s, not %s", want, kindName(e.JSONKind))}
+		return &field.Error{Pointer: ptr, Message: fmt.Sprintf("must be %s, not %s", want, kindName(e.JSONKind))}
 	case errors.Is(e.Err, strconv.ErrRange) || (e.Err != nil && strings.Contains(e.Err.Error(), "out of range")):
 		if isFloat(e.GoType) {
-			return &Error{Pointer: ptr, Message: outOfRangeFloat}
+			return &field.Error{Pointer: ptr, Message: outOfRangeFloat}
 		}
-		return &Error{Pointer: ptr, Message: fmt.Sprintf("must be %s within range", want)}
+		return &field.Error{Pointer: ptr, Message: fmt.Sprintf("must be %s within range", want)}
 	case errors.Is(e.Err, strconv.ErrSyntax) || (e.Err != nil && strings.Contains(e.Err.Error(), "invalid syntax")):
-		return &Error{Pointer: ptr, Message: "must be " + want}
+		return &field.Error{Pointer: ptr, Message: "must be " + want}
 	}
-	return &Error{Pointer: ptr, Message: "must be " + want}
+	return &field.Error{Pointer: ptr, Message: "must be " + want}
 }
 
 func isFloat(t reflect.Type) bool {

@@ -8,6 +8,8 @@ import (
 
 	"github.com/go-json-experiment/json/jsontext"
 	"github.com/google/uuid"
+
+	"wheelbench/service/field"
 )
 
 type inner struct {
@@ -76,9 +78,9 @@ func TestUnmarshalRefuses(t *testing.T) {
 		t.Run(c.name, func(t *testing.T) {
 			var d doc
 			err := Unmarshal([]byte(c.body), &d)
-			var fe *Error
+			var fe *field.Error
 			if !errors.As(err, &fe) {
-				t.Fatalf("Unmarshal(%q) = %v, want *Error", c.body, err)
+				t.Fatalf("Unmarshal(%q) = %v, want *field.Error", c.body, err)
 			}
 			if fe.Pointer != c.ptr || fe.Message != c.msg {
 				t.Errorf("Unmarshal(%q): pointer %q message %q, want %q %q", c.body, fe.Pointer, fe.Message, c.ptr, c.msg)
@@ -125,7 +127,7 @@ func TestCheck(t *testing.T) {
 		{strings.Repeat(`{"a":`, 10001) + "1" + strings.Repeat("}", 10001), "", "the body nests arrays and objects more than 10000 deep"},
 	} {
 		err := Check([]byte(c.body))
-		var fe *Error
+		var fe *field.Error
 		if !errors.As(err, &fe) || fe.Pointer != c.ptr || fe.Message != c.msg {
 			t.Errorf("Check(%q) = %v, want %q %q", c.body, err, c.ptr, c.msg)
 		}
@@ -152,9 +154,9 @@ func FuzzCheck(f *testing.F) {
 			t.Fatalf("Check passed %q, which is not valid JSON", b)
 		}
 		if err != nil {
-			var fe *Error
+			var fe *field.Error
 			if !errors.As(err, &fe) {
-				t.Fatalf("Check(%q) = %T %v, want *Error", b, err, err)
+				t.Fatalf("Check(%q) = %T %v, want *field.Error", b, err, err)
 			}
 		}
 		var v any

@@ -10,6 +10,8 @@ import (
 	"strconv"
 	"strings"
 	"time"
+
+	"wheelbench/service/field"
 )
 
 // ChartHeading is what a chart's title names: the tool and the calibration
@@ -96,7 +98,7 @@ func (m *Model) Chart(spec *SpokeSpec, h ChartHeading) ([]byte, error) {
 			return nil, err
 		}
 		if m.Physical == nil && p.col < 0 {
-			return nil, impossible("/spoke", "%s", m.Unidentified)
+			return nil, field.Unprocessable("/spoke", "%s", m.Unidentified)
 		}
 		req = &p
 	}

@@ -7,13 +7,15 @@ import (
 	"testing"
 
 	"github.com/google/go-cmp/cmp"
+
+	"wheelbench/service/field"
 )
 
-func fieldErr(t *testing.T, err error) *FieldError {
+func fieldErr(t *testing.T, err error) *field.Error {
 	t.Helper()
-	var fe *FieldError
+	var fe *field.Error
 	if !errors.As(err, &fe) {
-		t.Fatalf("want a *FieldError, got %v", err)
+		t.Fatalf("want a *field.Error, got %v", err)
 	}
 	return fe
 }
@@ -255,7 +257,7 @@ func collect(err error, out *[]string) {
 		}
 		return
 	}
-	var fe *FieldError
+	var fe *field.Error
 	if errors.As(err, &fe) {
 		*out = append(*out, fe.Pointer)
 	}

@@ -3,6 +3,7 @@ package tension
 import (
 	"errors"
 
+	"wheelbench/service/field"
 	"wheelbench/service/spoke"
 )
 
@@ -34,10 +35,10 @@ type ConversionResponse struct {
 // with error pointers under "/calibration".
 func (req ConversionRequest) FitInline(tool Tool) (*Model, error) {
 	if req.Calibration == nil {
-		return nil, badField("/calibration", "give calibration_id or an inline calibration")
+		return nil, field.Invalid("/calibration", "give calibration_id or an inline calibration")
 	}
 	m, err := Fit(*req.Calibration, tool)
-	return m, WithPointerPrefix(err, "/calibration")
+	return m, field.Under("/calibration", err)
 }
 
 // ConvertRequest answers a conversion request against a fitted model. Pointers
@@ -60,13 +61,13 @@ func (m *Model) ConvertRequest(req ConversionRequest) (ConversionResponse, error
 	}
 	switch {
 	case len(targets) > 1:
-		return ConversionResponse{}, badField(targets[1].at, "give one target tension only (N, kgf or lbf)")
+		return ConversionResponse{}, field.Invalid(targets[1].at, "give one target tension only (N, kgf or lbf)")
 	case len(targets) == 1 && len(req.Readings) > 0:
-		return ConversionResponse{}, badField("/readings", "give readings or a target tension, not both")
+		return ConversionResponse{}, field.Invalid("/readings", "give readings or a target tension, not both")
 	case len(targets) == 0 && len(req.Readings) == 0:
-		return ConversionResponse{}, badField("/readings", "give readings or a target tension")
+		return ConversionResponse{}, field.Invalid("/readings", "give readings or a target tension")
 	case len(req.Readings) > maxReadings:
-		return ConversionResponse{}, badField("/readings", "at most %d readings per request", maxReadings)
+		return ConversionResponse{}, field.Invalid("/readings", "at most %d readings per request", maxReadings)
 	}
 	p, err := m.prepareSpoke(req.Spoke, "/spoke")
 	if err != nil {
