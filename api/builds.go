@@ -11,6 +11,7 @@ import (
 	"wheelbench/service"
 	"wheelbench/service/field"
 	"wheelbench/service/quote"
+	"wheelbench/service/tension"
 )
 
 type buildCreateJSON struct {
@@ -218,7 +219,7 @@ func (s *Server) acceptQuote(c echo.Context) error {
 
 type buildAuditJSON struct {
 	CalibrationID uuid.UUID              `json:"calibration_id"`
-	Readings      []service.AuditReading `json:"readings"`
+	Readings      []tension.AuditReading `json:"readings"`
 	TolerancePct  *float64               `json:"tolerance_pct"`
 	Notes         string                 `json:"notes"`
 }

@@ -4,14 +4,17 @@ import (
 	"bytes"
 	"net/http"
 	"strconv"
+	"strings"
 	"time"
 
 	"github.com/google/uuid"
 	"github.com/labstack/echo/v4"
 
+	"wheelbench/api/chart"
 	"wheelbench/service"
 	"wheelbench/service/field"
 	"wheelbench/service/spoke"
+	"wheelbench/service/tension"
 	"wheelbench/strictjson"
 )
 
@@ -142,42 +145,36 @@ type modelParamJSON struct {
 }
 
 type calibrationModelJSON struct {
-	Identified         bool                     `json:"identified"`
-	UnidentifiedReason string                   `json:"unidentified_reason,omitempty"`
-	ModelVersion       int                      `json:"model_version"`
-	UnitMM             float64                  `json:"unit_mm"`
-	MeasuredSpanMM     *float64                 `json:"measured_span_mm,omitempty"`
-	TensionRangeN      [2]float64               `json:"tension_range_n"`
-	Parameters         []modelParamJSON         `json:"parameters,omitempty"`
-	ResidualSDUnits    *float64                 `json:"residual_sd_units,omitempty"`
-	Points             *int                     `json:"points,omitempty"`
-	DoF                *int                     `json:"dof,omitempty"`
-	T975               *float64                 `json:"t_975,omitempty"`
-	ConditionNumber    *float64                 `json:"condition_number,omitempty"`
-	Iterations         *int                     `json:"iterations,omitempty"`
-	Warnings           []service.TensionWarning `json:"warnings"`
+	Identified         bool              `json:"identified"`
+	UnidentifiedReason string            `json:"unidentified_reason,omitempty"`
+	ModelVersion       int               `json:"model_version"`
+	UnitMM             float64           `json:"unit_mm"`
+	MeasuredSpanMM     *float64          `json:"measured_span_mm,omitempty"`
+	TensionRangeN      [2]float64        `json:"tension_range_n"`
+	Parameters         []modelParamJSON  `json:"parameters,omitempty"`
+	ResidualSDUnits    *float64          `json:"residual_sd_units,omitempty"`
+	Points             *int              `json:"points,omitempty"`
+	DoF                *int              `json:"dof,omitempty"`
+	T975               *float64          `json:"t_975,omitempty"`
+	ConditionNumber    *float64          `json:"condition_number,omitempty"`
+	Iterations         *int              `json:"iterations,omitempty"`
+	Warnings           []tension.Warning `json:"warnings"`
 }
 
+// calibrationJSON is a calibration version with its model described.
 type calibrationJSON struct {
-	ID        uuid.UUID                   `json:"id"`
-	ToolID    uuid.UUID                   `json:"tool_id"`
-	Version   int                         `json:"version"`
-	Source    string                      `json:"source"`
-	Notes     string                      `json:"notes"`
-	Tool      service.ToolFacts           `json:"tool"`
-	Columns   []service.CalibrationColumn `json:"columns"`
-	Model     calibrationModelJSON        `json:"model"`
-	CreatedAt time.Time                   `json:"created_at"`
+	service.Calibration
+	Model calibrationModelJSON `json:"model"`
 }
 
 func toCalibrationJSON(cal service.Calibration) calibrationJSON {
-	out := calibrationJSON{ID: cal.ID, ToolID: cal.ToolID, Version: cal.Version, Source: cal.Source, Notes: cal.Notes,
-		Tool: cal.Tool, Columns: cal.Columns, CreatedAt: cal.CreatedAt.UTC()}
+	cal.CreatedAt = cal.CreatedAt.UTC()
+	out := calibrationJSON{Calibration: cal}
 	if m := cal.Model; m != nil {
 		mj := calibrationModelJSON{ModelVersion: m.Version, UnitMM: m.UnitMM, MeasuredSpanMM: m.MeasuredSpanMM,
 			TensionRangeN: m.TensionRangeN, UnidentifiedReason: m.Unidentified, Warnings: m.Warnings}
 		if mj.Warnings == nil {
-			mj.Warnings = []service.TensionWarning{}
+			mj.Warnings = []tension.Warning{}
 		}
 		if ph := m.Physical; ph != nil {
 			mj.Identified = true
@@ -193,9 +190,9 @@ func toCalibrationJSON(cal service.Calibration) calibrationJSON {
 }
 
 type calibrationCreateJSON struct {
-	Source  string                      `json:"source"`
-	Columns []service.CalibrationColumn `json:"columns"`
-	Notes   string                      `json:"notes"`
+	Source  string           `json:"source"`
+	Columns []tension.Column `json:"columns"`
+	Notes   string           `json:"notes"`
 }
 
 func (s *Server) publishCalibration(c echo.Context) error {
@@ -256,7 +253,7 @@ func (s *Server) getCalibrationChart(c echo.Context) error {
 	if err != nil {
 		return err
 	}
-	var spec *service.SpokeSpec
+	var spec *tension.SpokeSpec
 	num := func(name string) (float64, error) {
 		v := c.QueryParam(name)
 		if v == "" {
@@ -278,7 +275,7 @@ func (s *Server) getCalibrationChart(c echo.Context) error {
 		}
 	}
 	if d != 0 || w != 0 || t != 0 || c.QueryParam("profile") != "" {
-		spec = &service.SpokeSpec{Profile: c.QueryParam("profile"), DiameterMM: d, WidthMM: w, ThicknessMM: t,
+		spec = &tension.SpokeSpec{Profile: c.QueryParam("profile"), DiameterMM: d, WidthMM: w, ThicknessMM: t,
 			Material: c.QueryParam("material")}
 		if c.QueryParam("e_gpa") != "" {
 			spec.EGPa = &e
@@ -286,19 +283,31 @@ func (s *Server) getCalibrationChart(c echo.Context) error {
 			spec.Material = "stainless_steel"
 		}
 	}
-	svg, err := s.svc.CalibrationChart(c.Request().Context(), principal(c), id, spec)
+	cc, err := s.svc.CalibrationChart(c.Request().Context(), principal(c), id, spec)
 	if err != nil {
-		return err
+		return field.Map(err, queryPointer) // the section came as query parameters
 	}
+	svg := chart.SVG(cc.Chart, chart.Heading{ToolLabel: cc.Tool.Label, ToolSerial: cc.Tool.Serial,
+		CalibrationVersion: cc.Calibration.Version, Source: cc.Calibration.Source, Published: cc.Calibration.CreatedAt})
 	c.Response().Header().Set("Cache-Control", "private, max-age=86400")
 	return c.Blob(http.StatusOK, "image/svg+xml", svg)
 }
 
+// queryPointer names the chart's query parameter for a pointer into the
+// section it was given ("/spoke/width_mm" → "query:width_mm").
+func queryPointer(p string) string {
+	name := strings.TrimPrefix(strings.TrimPrefix(p, "/spoke"), "/")
+	if name == "" {
+		name = "diameter_mm"
+	}
+	return "query:" + name
+}
+
 // inlineCalibrationJSON is a calibration sent with a computation.
 type inlineCalibrationJSON struct {
-	Source  string                      `json:"source"`
-	Columns []service.CalibrationColumn `json:"columns"`
-	Tool    service.ToolFacts           `json:"tool"`
+	Source  string           `json:"source"`
+	Columns []tension.Column `json:"columns"`
+	Tool    tension.Tool     `json:"tool"`
 }
 
 func calibrationRef(id *uuid.UUID, inline *inlineCalibrationJSON) service.CalibrationRef {
@@ -338,14 +347,14 @@ func (s *Server) convertTension(c echo.Context) error {
 		return err
 	}
 	out, err := s.svc.ConvertTension(c.Request().Context(), principal(c), calibrationRef(in.CalibrationID, in.Calibration),
-		service.ConversionRequest{Spoke: in.Spoke, Readings: in.Readings, TargetTensionN: in.TargetTensionN,
+		tension.ConversionRequest{Spoke: in.Spoke, Readings: in.Readings, TargetTensionN: in.TargetTensionN,
 			TargetTensionKgf: in.TargetTensionKgf, TargetTensionLbf: in.TargetTensionLbf})
 	if err != nil {
 		return err
 	}
 	return c.JSON(http.StatusOK, struct {
 		Calibration *calibrationUsedJSON `json:"calibration,omitempty"`
-		service.ConversionResponse
+		tension.ConversionResponse
 	}{toCalibrationUsed(out.Calibration), out.ConversionResponse})
 }
 
@@ -355,7 +364,7 @@ type auditJSON struct {
 	Spoke                   spoke.Spec             `json:"spoke"`
 	SpokeLeft               *spoke.Spec            `json:"spoke_left"`
 	SpokeRight              *spoke.Spec            `json:"spoke_right"`
-	Readings                []service.AuditReading `json:"readings"`
+	Readings                []tension.AuditReading `json:"readings"`
 	TargetTensionN          *float64               `json:"target_tension_n"`
 	TargetTensionKgf        *float64               `json:"target_tension_kgf"`
 	TargetTensionLbf        *float64               `json:"target_tension_lbf"`
@@ -370,17 +379,17 @@ func (s *Server) auditTension(c echo.Context) error {
 		return err
 	}
 	out, err := s.svc.AuditTension(c.Request().Context(), principal(c), calibrationRef(in.CalibrationID, in.Calibration),
-		service.AuditRequest{Spoke: in.Spoke, SpokeLeft: in.SpokeLeft, SpokeRight: in.SpokeRight, Readings: in.Readings,
+		tension.AuditRequest{Spoke: in.Spoke, SpokeLeft: in.SpokeLeft, SpokeRight: in.SpokeRight, Readings: in.Readings,
 			TargetTensionN: in.TargetTensionN, TargetTensionKgf: in.TargetTensionKgf, TargetTensionLbf: in.TargetTensionLbf,
 			TargetSide: in.TargetSide, TolerancePct: in.TolerancePct, GeometricLeftRightRatio: in.GeometricLeftRightRatio})
 	if err != nil {
 		return err
 	}
 	if out.Spokes == nil {
-		out.Spokes = []service.SpokeVerdict{}
+		out.Spokes = []tension.SpokeVerdict{}
 	}
 	return c.JSON(http.StatusOK, struct {
 		Calibration *calibrationUsedJSON `json:"calibration,omitempty"`
-		service.AuditResult
+		tension.AuditResult
 	}{toCalibrationUsed(out.Calibration), out.AuditResult})
 }

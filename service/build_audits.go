@@ -10,6 +10,7 @@ import (
 	"github.com/google/uuid"
 
 	"wheelbench/service/field"
+	"wheelbench/service/tension"
 )
 
 // BuildTensionAudit is a stored tension audit of a built wheel: the
@@ -17,22 +18,22 @@ import (
 // converted tensions and the verdict. Kept for warranty: never edited; a
 // later audit of the same build supersedes it.
 type BuildTensionAudit struct {
-	ID            uuid.UUID      `json:"id"`
-	OrgID         uuid.UUID      `json:"-"`
-	BuildID       uuid.UUID      `json:"build_id"`
-	ToolID        uuid.UUID      `json:"tool_id"`
-	CalibrationID uuid.UUID      `json:"calibration_id"`
-	Readings      []AuditReading `json:"readings"`
-	Result        AuditResult    `json:"result"`
-	Notes         string         `json:"notes"`
-	SupersededBy  *uuid.UUID     `json:"superseded_by,omitempty"`
-	CreatedAt     time.Time      `json:"created_at"`
+	ID            uuid.UUID              `json:"id"`
+	OrgID         uuid.UUID              `json:"-"`
+	BuildID       uuid.UUID              `json:"build_id"`
+	ToolID        uuid.UUID              `json:"tool_id"`
+	CalibrationID uuid.UUID              `json:"calibration_id"`
+	Readings      []tension.AuditReading `json:"readings"`
+	Result        tension.AuditResult    `json:"result"`
+	Notes         string                 `json:"notes"`
+	SupersededBy  *uuid.UUID             `json:"superseded_by,omitempty"`
+	CreatedAt     time.Time              `json:"created_at"`
 }
 
 // BuildAuditInput records an audit of a build.
 type BuildAuditInput struct {
 	CalibrationID uuid.UUID
-	Readings      []AuditReading
+	Readings      []tension.AuditReading
 	TolerancePct  *float64
 	Notes         string
 }
@@ -64,7 +65,7 @@ func (s *Service) RecordBuildAudit(ctx context.Context, p Principal, buildID uui
 	// geometry, else from its two target tensions) decides which side that
 	// is and aims the other; no target_side is sent.
 	t := b.Snapshot.TargetTensionsN
-	req := AuditRequest{Spoke: res.Spoke, Readings: in.Readings, TolerancePct: in.TolerancePct}
+	req := tension.AuditRequest{Spoke: res.Spoke, Readings: in.Readings, TolerancePct: in.TolerancePct}
 	if target := max(t.Left, t.Right); target > 0 {
 		req.TargetTensionN = &target
 	}

@@ -4,30 +4,11 @@ import (
 	"context"
 	"errors"
 	"fmt"
-	"strings"
 
 	"github.com/google/uuid"
 
 	"wheelbench/service/field"
 	"wheelbench/service/tension"
-)
-
-// The tension types that cross the service boundary. The HTTP layer reads
-// and writes them through these names and does not import service/tension.
-type (
-	SpokeSpec          = tension.SpokeSpec
-	CalibrationColumn  = tension.Column
-	CalibrationPoint   = tension.Point
-	ToolFacts          = tension.Tool
-	TensionModel       = tension.Model
-	TensionWarning     = tension.Warning
-	ConversionRequest  = tension.ConversionRequest
-	ConversionResponse = tension.ConversionResponse
-	AuditRequest       = tension.AuditRequest
-	AuditReading       = tension.AuditReading
-	AuditResult        = tension.AuditResult
-	ToolParams         = tension.ToolParams
-	SpokeVerdict       = tension.SpokeVerdict
 )
 
 // CalibrationRef names the calibration a computation uses: a stored
@@ -41,13 +22,13 @@ type CalibrationRef struct {
 // InlineCalibration is a calibration sent with a computation.
 type InlineCalibration struct {
 	Source  string
-	Columns []CalibrationColumn
-	Tool    ToolFacts
+	Columns []tension.Column
+	Tool    tension.Tool
 }
 
 // modelFor resolves ref to a fitted model; cal is the stored version used,
 // nil for an inline calibration.
-func (s *Service) modelFor(ctx context.Context, p Principal, ref CalibrationRef) (m *TensionModel, cal *Calibration, err error) {
+func (s *Service) modelFor(ctx context.Context, p Principal, ref CalibrationRef) (m *tension.Model, cal *Calibration, err error) {
 	switch {
 	case ref.ID != nil && ref.Inline != nil:
 		return nil, nil, field.Invalid("/calibration", "give calibration_id or an inline calibration, not both")
@@ -86,17 +67,16 @@ func inlinePointer(p string) string {
 // version it used (nil for an inline calibration).
 type ConversionOutput struct {
 	Calibration *Calibration
-	ConversionResponse
+	tension.ConversionResponse
 }
 
 // ConvertTension converts readings to tensions, or a target tension to the
 // reading to aim for. It stores nothing.
-func (s *Service) ConvertTension(ctx context.Context, p Principal, ref CalibrationRef, req ConversionRequest) (ConversionOutput, error) {
+func (s *Service) ConvertTension(ctx context.Context, p Principal, ref CalibrationRef, req tension.ConversionRequest) (ConversionOutput, error) {
 	m, cal, err := s.modelFor(ctx, p, ref)
 	if err != nil {
 		return ConversionOutput{}, err
 	}
-	req.Calibration, req.CalibrationID = nil, ""
 	out, err := m.ConvertRequest(req)
 	if err != nil {
 		return ConversionOutput{}, err
@@ -108,16 +88,15 @@ func (s *Service) ConvertTension(ctx context.Context, p Principal, ref Calibrati
 // used (nil for an inline calibration).
 type AuditOutput struct {
 	Calibration *Calibration
-	AuditResult
+	tension.AuditResult
 }
 
 // AuditTension judges one wheel's readings. It stores nothing.
-func (s *Service) AuditTension(ctx context.Context, p Principal, ref CalibrationRef, req AuditRequest) (AuditOutput, error) {
+func (s *Service) AuditTension(ctx context.Context, p Principal, ref CalibrationRef, req tension.AuditRequest) (AuditOutput, error) {
 	m, cal, err := s.modelFor(ctx, p, ref)
 	if err != nil {
 		return AuditOutput{}, err
 	}
-	req.Calibration, req.CalibrationID = nil, ""
 	out, err := m.Audit(req)
 	if err != nil {
 		return AuditOutput{}, err
@@ -125,29 +104,30 @@ func (s *Service) AuditTension(ctx context.Context, p Principal, ref Calibration
 	return AuditOutput{Calibration: cal, AuditResult: out}, nil
 }
 
-// CalibrationChart draws a stored calibration version as SVG, titled with
-// its tool's label and serial and the version, with the requested
-// section's curve and 95 % band when spec is not nil. Field
-// errors name the query parameters.
-func (s *Service) CalibrationChart(ctx context.Context, p Principal, id uuid.UUID, spec *SpokeSpec) ([]byte, error) {
+// CalibrationChart is what the chart of a calibration version shows: its
+// curves (and a requested section's) and the tool and version they belong
+// to. Drawing it is a view's business.
+type CalibrationChart struct {
+	Chart       tension.Chart
+	Tool        Tool
+	Calibration Calibration
+}
+
+// CalibrationChart computes the curves of a stored calibration version,
+// with the requested section's curve and 95 % band when spec is not nil
+// (field errors point under "/spoke").
+func (s *Service) CalibrationChart(ctx context.Context, p Principal, id uuid.UUID, spec *tension.SpokeSpec) (CalibrationChart, error) {
 	m, cal, err := s.modelFor(ctx, p, CalibrationRef{ID: &id})
 	if err != nil {
-		return nil, err
+		return CalibrationChart{}, err
 	}
 	tool, err := s.store.GetTool(ctx, p.OrgID, cal.ToolID)
 	if err != nil {
-		return nil, fmt.Errorf("calibration %s: tool %s: %w", cal.ID, cal.ToolID, err)
+		return CalibrationChart{}, fmt.Errorf("calibration %s: tool %s: %w", cal.ID, cal.ToolID, err)
 	}
-	svg, err := m.Chart(spec, tension.ChartHeading{ToolLabel: tool.Label, ToolSerial: tool.Serial,
-		CalibrationVersion: cal.Version, Source: cal.Source, Published: cal.CreatedAt})
-	return svg, field.Map(err, queryPointer)
-}
-
-// queryPointer turns the chart's "/spoke/NAME" pointers into "query:NAME".
-func queryPointer(p string) string {
-	name := strings.TrimPrefix(strings.TrimPrefix(p, "/spoke"), "/")
-	if name == "" {
-		name = "diameter_mm"
+	c, err := m.Chart(spec)
+	if err != nil {
+		return CalibrationChart{}, err
 	}
-	return "query:" + name
+	return CalibrationChart{Chart: c, Tool: tool, Calibration: *cal}, nil
 }

@@ -37,8 +37,8 @@ type Tool struct {
 func (t Tool) ETag() string { return ETag(t.ID, t.Version) }
 
 // Facts are what the tool model needs to know about the tool.
-func (t Tool) Facts() ToolFacts {
-	return ToolFacts{UnitMM: t.UnitMM, MeasuredSpanMM: t.MeasuredSpanMM}
+func (t Tool) Facts() tension.Tool {
+	return tension.Tool{UnitMM: t.UnitMM, MeasuredSpanMM: t.MeasuredSpanMM}
 }
 
 // ToolInput is what creating a tool takes. UnitMM nil means DefaultUnitMM.
@@ -177,17 +177,17 @@ func (s *Service) UpdateTool(ctx context.Context, p Principal, id uuid.UUID, ifM
 // Calibration is one immutable version of a tool's calibration, with the
 // tool model fitted once when it was published (Model, never refitted).
 type Calibration struct {
-	ID      uuid.UUID           `json:"id"`
-	OrgID   uuid.UUID           `json:"-"`
-	ToolID  uuid.UUID           `json:"tool_id"`
-	Version int                 `json:"version"`
-	Source  string              `json:"source"`
-	Notes   string              `json:"notes"`
-	Tool    ToolFacts           `json:"tool"`
-	Columns []CalibrationColumn `json:"columns"`
+	ID      uuid.UUID        `json:"id"`
+	OrgID   uuid.UUID        `json:"-"`
+	ToolID  uuid.UUID        `json:"tool_id"`
+	Version int              `json:"version"`
+	Source  string           `json:"source"`
+	Notes   string           `json:"notes"`
+	Tool    tension.Tool     `json:"tool"`
+	Columns []tension.Column `json:"columns"`
 	// Model is the fitted tool model as stored; it is not part of the feed.
-	Model     *TensionModel `json:"-"`
-	CreatedAt time.Time     `json:"created_at"`
+	Model     *tension.Model `json:"-"`
+	CreatedAt time.Time      `json:"created_at"`
 }
 
 // CalibrationInput is what publishing a calibration takes.
@@ -195,7 +195,7 @@ type CalibrationInput struct {
 	ID      uuid.UUID // optional: zero means a new id
 	Source  string    // maker_table (default) or known_tension
 	Notes   string
-	Columns []CalibrationColumn
+	Columns []tension.Column
 }
 
 // PublishCalibration validates the columns, fits the tool model once with

@@ -29,21 +29,18 @@ const defaultTolerancePct = 10
 // sides and a warning says that a dished wheel needs the ratio. Without a
 // target each side is judged against its own mean.
 type AuditRequest struct {
-	// CalibrationID is resolved by the caller; this package ignores it.
-	CalibrationID    string         `json:"calibration_id,omitempty"`
-	Calibration      *Calibration   `json:"calibration,omitempty"`
-	Spoke            spoke.Spec     `json:"spoke"`
-	SpokeLeft        *spoke.Spec    `json:"spoke_left,omitempty"`
-	SpokeRight       *spoke.Spec    `json:"spoke_right,omitempty"`
-	Readings         []AuditReading `json:"readings"`
-	TargetTensionN   *float64       `json:"target_tension_n,omitempty"`
-	TargetTensionKgf *float64       `json:"target_tension_kgf,omitempty"`
-	TargetTensionLbf *float64       `json:"target_tension_lbf,omitempty"`
-	TargetSide       string         `json:"target_side,omitempty"`
+	Spoke            spoke.Spec
+	SpokeLeft        *spoke.Spec
+	SpokeRight       *spoke.Spec
+	Readings         []AuditReading
+	TargetTensionN   *float64
+	TargetTensionKgf *float64
+	TargetTensionLbf *float64
+	TargetSide       string
 	// TolerancePct is the allowed deviation in percent (default 10).
-	TolerancePct *float64 `json:"tolerance_pct,omitempty"`
+	TolerancePct *float64
 	// GeometricLeftRightRatio is T_left/T_right from the wheel's geometry.
-	GeometricLeftRightRatio *float64 `json:"geometric_left_right_ratio,omitempty"`
+	GeometricLeftRightRatio *float64
 }
 
 // AuditReading is one spoke's dial reading.

@@ -2,7 +2,8 @@
 // three-point tensiometer's calibration (its table of readings per spoke
 // section), the fitted physical model of the tool, conversion between dial
 // readings and tension with honest 95 % intervals, the audit of one wheel's
-// readings, and an SVG chart of a calibration.
+// readings, and the curves a chart of a calibration draws (api/chart draws
+// them).
 //
 // Conversion follows an order of authority. A section that is a calibrated
 // column is interpolated monotonically inside that column (method

@@ -10,35 +10,22 @@ import (
 // maxReadings bounds one conversion request.
 const maxReadings = 1000
 
-// ConversionRequest is the body of a conversion: a calibration (by id,
-// which the caller resolves to a stored Model, or inline), the spoke (the
-// same description as everywhere; its measured section is converted), and
-// either readings or exactly one target tension in N, kgf or lbf.
+// ConversionRequest is what one conversion against a fitted model asks: the
+// spoke (the same description as everywhere; its measured section is
+// converted), and either readings or exactly one target tension in N, kgf
+// or lbf. The calibration it converts with is the caller's to find.
 type ConversionRequest struct {
-	// CalibrationID is resolved by the caller; this package ignores it.
-	CalibrationID    string       `json:"calibration_id,omitempty"`
-	Calibration      *Calibration `json:"calibration,omitempty"`
-	Spoke            spoke.Spec   `json:"spoke"`
-	Readings         []float64    `json:"readings,omitempty"`
-	TargetTensionN   *float64     `json:"target_tension_n,omitempty"`
-	TargetTensionKgf *float64     `json:"target_tension_kgf,omitempty"`
-	TargetTensionLbf *float64     `json:"target_tension_lbf,omitempty"`
+	Spoke            spoke.Spec
+	Readings         []float64
+	TargetTensionN   *float64
+	TargetTensionKgf *float64
+	TargetTensionLbf *float64
 }
 
 // ConversionResponse carries results for readings, or the target.
 type ConversionResponse struct {
 	Results []Result `json:"results,omitempty"`
 	Target  *Target  `json:"target,omitempty"`
-}
-
-// FitInline fits the request's inline calibration (tool facts as given),
-// with error pointers under "/calibration".
-func (req ConversionRequest) FitInline(tool Tool) (*Model, error) {
-	if req.Calibration == nil {
-		return nil, field.Invalid("/calibration", "give calibration_id or an inline calibration")
-	}
-	m, err := Fit(*req.Calibration, tool)
-	return m, field.Under("/calibration", err)
 }
 
 // ConvertRequest answers a conversion request against a fitted model. Pointers
