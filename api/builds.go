@@ -1,7 +1,6 @@
 package api
 
 import (
-	"encoding/json"
 	"net/http"
 	"time"
 
@@ -15,9 +14,9 @@ import (
 )
 
 type buildCreateJSON struct {
-	Spec        json.RawMessage `json:"spec"`
-	ExternalRef string          `json:"external_ref"`
-	LocationID  uuid.UUID       `json:"location_id"`
+	Spec        service.BuildSpec `json:"spec"`
+	ExternalRef string            `json:"external_ref"`
+	LocationID  uuid.UUID         `json:"location_id"`
 }
 
 func (s *Server) createBuild(c echo.Context) error {
@@ -31,57 +30,7 @@ func (s *Server) createBuild(c echo.Context) error {
 	}
 	c.Response().Header().Set("ETag", b.ETag())
 	c.Response().Header().Set("Location", "/v1/builds/"+b.ID.String())
-	if b.SnapshotJSON == nil {
-		return c.JSON(http.StatusCreated, b)
-	}
-	head := createdBuildHead{ID: b.ID, LocationID: b.LocationID, ExternalRef: b.ExternalRef, Status: b.Status, Spec: b.Spec}
-	tail := createdBuildTail{Notes: b.Notes, CreatedAt: b.CreatedAt, UpdatedAt: b.UpdatedAt}
-	if _, pretty := c.QueryParams()["pretty"]; pretty || c.Echo().Debug {
-		return c.JSON(http.StatusCreated, createdBuildJSON{head, b.SnapshotJSON, tail})
-	}
-	// What c.JSON would write for createdBuildJSON, without compacting the
-	// snapshot's bytes again (json.Marshal's output is compact already).
-	h, err := json.Marshal(head)
-	if err != nil {
-		return err
-	}
-	t, err := json.Marshal(tail)
-	if err != nil {
-		return err
-	}
-	out := make([]byte, 0, len(h)+len(b.SnapshotJSON)+len(t)+16)
-	out = append(out, h[:len(h)-1]...)
-	out = append(out, `,"snapshot":`...)
-	out = append(out, b.SnapshotJSON...)
-	out = append(out, ',')
-	out = append(out, t[1:]...)
-	out = append(out, '\n')
-	return c.Blob(http.StatusCreated, echo.MIMEApplicationJSON, out)
-}
-
-// createdBuildJSON is service.Build as encoding/json writes it — the same
-// members in the same order — with the snapshot as the bytes the service
-// already marshalled (and stored) instead of the struct encoded again.
-type createdBuildJSON struct {
-	createdBuildHead
-	Snapshot json.RawMessage `json:"snapshot"`
-	createdBuildTail
-}
-
-// createdBuildHead and createdBuildTail are a build's members before and
-// after the snapshot.
-type createdBuildHead struct {
-	ID          uuid.UUID           `json:"id"`
-	LocationID  uuid.UUID           `json:"location_id"`
-	ExternalRef string              `json:"external_ref"`
-	Status      service.BuildStatus `json:"status"`
-	Spec        json.RawMessage     `json:"spec"`
-}
-
-type createdBuildTail struct {
-	Notes     string    `json:"notes"`
-	CreatedAt time.Time `json:"created_at"`
-	UpdatedAt time.Time `json:"updated_at"`
+	return c.JSON(http.StatusCreated, b)
 }
 
 func (s *Server) getBuild(c echo.Context) error {

@@ -1,12 +1,15 @@
 package api
 
 import (
-	"encoding/json"
+	"bytes"
 	"net/http"
 
+	"github.com/go-json-experiment/json/jsontext"
 	"github.com/labstack/echo/v4"
 
 	"wheelbench/service"
+	"wheelbench/service/field"
+	"wheelbench/strictjson"
 )
 
 type partCreateJSON struct {
@@ -15,7 +18,7 @@ type partCreateJSON struct {
 	Name       string           `json:"name"`
 	PriceMinor int64            `json:"price_minor"`
 	Currency   string           `json:"currency"`
-	Dimensions json.RawMessage  `json:"dimensions"`
+	Dimensions jsontext.Value   `json:"dimensions"`
 }
 
 func (s *Server) createPart(c echo.Context) error {
@@ -23,7 +26,12 @@ func (s *Server) createPart(c echo.Context) error {
 	if err := decode(c, &in); err != nil {
 		return err
 	}
-	p, err := s.svc.CreatePart(c.Request().Context(), principal(c), service.PartInput(in))
+	dims, err := decodeDimensions(in.Kind, in.Dimensions)
+	if err != nil {
+		return err
+	}
+	p, err := s.svc.CreatePart(c.Request().Context(), principal(c), service.PartInput{Kind: in.Kind, SKU: in.SKU, Name: in.Name,
+		PriceMinor: in.PriceMinor, Currency: in.Currency, Dimensions: dims})
 	if err != nil {
 		return err
 	}
@@ -66,11 +74,38 @@ func (s *Server) listParts(c echo.Context) error {
 }
 
 type partPatchJSON struct {
-	SKU        *string         `json:"sku"`
-	Name       *string         `json:"name"`
-	PriceMinor *int64          `json:"price_minor"`
-	Currency   *string         `json:"currency"`
-	Dimensions json.RawMessage `json:"dimensions"`
+	SKU        *string        `json:"sku"`
+	Name       *string        `json:"name"`
+	PriceMinor *int64         `json:"price_minor"`
+	Currency   *string        `json:"currency"`
+	Dimensions jsontext.Value `json:"dimensions"`
+}
+
+// decodeDimensions reads a part's dimensions for its kind under the strict
+// policy: the object the compatibility check takes for that kind, every
+// number in it not negative. None (nil) when absent or the kind is not one
+// of ours: the service says what is missing.
+func decodeDimensions(kind service.PartKind, raw jsontext.Value) (any, error) {
+	dims := kind.NewDimensions()
+	if len(raw) == 0 || dims == nil {
+		return nil, nil
+	}
+	if err := strictjson.Unmarshal(raw, dims); err != nil {
+		return nil, field.Under("/dimensions", err)
+	}
+	dec := jsontext.NewDecoder(bytes.NewReader(raw))
+	for {
+		tok, err := dec.ReadToken()
+		if err != nil {
+			return dims, nil // read whole already: only its end is left
+		}
+		if tok.Kind() != '0' {
+			continue
+		}
+		if f, _ := tok.Float(); f < 0 {
+			return nil, field.Invalid("/dimensions"+string(dec.StackPointer()), "must be a finite number, not negative")
+		}
+	}
 }
 
 func (s *Server) updatePart(c echo.Context) error {
@@ -82,7 +117,11 @@ func (s *Server) updatePart(c echo.Context) error {
 	if err := decode(c, &in); err != nil {
 		return err
 	}
-	p, err := s.svc.UpdatePart(c.Request().Context(), principal(c), id, c.Request().Header.Get("If-Match"), service.PartPatch(in))
+	patch := service.PartPatch{SKU: in.SKU, Name: in.Name, PriceMinor: in.PriceMinor, Currency: in.Currency}
+	if in.Dimensions != nil {
+		patch.Dimensions = func(kind service.PartKind) (any, error) { return decodeDimensions(kind, in.Dimensions) }
+	}
+	p, err := s.svc.UpdatePart(c.Request().Context(), principal(c), id, c.Request().Header.Get("If-Match"), patch)
 	if err != nil {
 		return err
 	}

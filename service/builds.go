@@ -2,10 +2,8 @@ package service
 
 import (
 	"context"
-	"encoding/json"
 	"errors"
 	"fmt"
-	"strings"
 	"time"
 	"unicode/utf8"
 
@@ -15,7 +13,7 @@ import (
 	"wheelbench/service/fit"
 	"wheelbench/service/geometry"
 	"wheelbench/service/spoke"
-	"wheelbench/strictjson"
+	"wheelbench/service/tension"
 )
 
 // BuildStatus is where a build is in the shop.
@@ -51,24 +49,20 @@ func (s BuildStatus) CanMoveTo(t BuildStatus) bool {
 	return nextStatus[s] == t
 }
 
-// Build is one wheel job: the spec as sent, and the snapshot computed from
+// Build is one wheel job: the spec as given, and the snapshot computed from
 // it when the build was created (kept for warranty, never recomputed).
 type Build struct {
-	ID          uuid.UUID       `json:"id"`
-	OrgID       uuid.UUID       `json:"-"`
-	LocationID  uuid.UUID       `json:"location_id"`
-	ExternalRef string          `json:"external_ref"`
-	Status      BuildStatus     `json:"status"`
-	Spec        json.RawMessage `json:"spec"`
-	Snapshot    BuildSnapshot   `json:"snapshot"`
-	// SnapshotJSON, when set (CreateBuild sets it), is json.Marshal of
-	// Snapshot, so that the store and the response use those bytes rather
-	// than encode the snapshot again.
-	SnapshotJSON json.RawMessage `json:"-"`
-	Notes        string          `json:"notes"`
-	Version      int64           `json:"-"`
-	CreatedAt    time.Time       `json:"created_at"`
-	UpdatedAt    time.Time       `json:"updated_at"`
+	ID          uuid.UUID     `json:"id"`
+	OrgID       uuid.UUID     `json:"-"`
+	LocationID  uuid.UUID     `json:"location_id"`
+	ExternalRef string        `json:"external_ref"`
+	Status      BuildStatus   `json:"status"`
+	Spec        BuildSpec     `json:"spec"`
+	Snapshot    BuildSnapshot `json:"snapshot"`
+	Notes       string        `json:"notes"`
+	Version     int64         `json:"-"`
+	CreatedAt   time.Time     `json:"created_at"`
+	UpdatedAt   time.Time     `json:"updated_at"`
 }
 
 // ETag is the build's entity tag.
@@ -105,8 +99,17 @@ type TargetReadings struct {
 	CalibrationID uuid.UUID `json:"calibration_id"`
 	// MeasuredSection is the section of the spoke the readings are for.
 	MeasuredSection MeasuredSection `json:"measured_section"`
-	Left            json.RawMessage `json:"left"`
-	Right           json.RawMessage `json:"right"`
+	Left            Aim             `json:"left"`
+	Right           Aim             `json:"right"`
+}
+
+// Aim is one side's reading to aim for: the conversion of the side's target
+// tension (Target), or the reason the calibration refused it (Refused).
+// Its members are the Target's, or refused alone: the embedded pointer's
+// members are left out while it is nil.
+type Aim struct {
+	*tension.Target
+	Refused string `json:"refused,omitempty"`
 }
 
 // BuildParts are the catalog part ids a build uses (nil: given inline).
@@ -119,10 +122,9 @@ type BuildParts struct {
 	Washers []uuid.UUID `json:"washers,omitempty"`
 }
 
-// BuildSpec is a build's spec: the compatibility-check body in which each
+// BuildSpec is a build's spec: the compatibility check's input in which each
 // part may instead be named by a catalog id (hub_id, rim_id, spoke_id,
-// nipple_id, tyre_id, washer_ids). Inline parts decode straight into their
-// fit types, so a spec is decoded once; null counts as absent.
+// nipple_id, tyre_id, washer_ids); nil is absent.
 type BuildSpec struct {
 	SpokeCount     int             `json:"spoke_count"`
 	Hub            *geometry.Hub   `json:"hub,omitempty"`
@@ -145,7 +147,7 @@ type BuildSpec struct {
 
 // BuildInput creates a build.
 type BuildInput struct {
-	Spec        json.RawMessage
+	Spec        BuildSpec
 	ExternalRef string
 	LocationID  uuid.UUID
 }
@@ -181,8 +183,8 @@ func resolvePart[T any](ctx context.Context, s *Service, orgID uuid.UUID, kind P
 		if p.Kind != kind {
 			return nil, nil, field.Unprocessable("/spec/"+member+"_id", "part %s is a %s, not a %s", id, p.Kind, kind)
 		}
-		dims := new(T)
-		if err := strictjson.Unmarshal(p.Dimensions, dims); err != nil {
+		dims, ok := p.Dimensions.(*T)
+		if !ok || dims == nil {
 			return nil, nil, field.Unprocessable("/spec/"+member+"_id", "part %s's dimensions do not describe a %s", id, kind)
 		}
 		return dims, id, nil
@@ -208,11 +210,7 @@ func specPart[T any](ctx context.Context, s *Service, orgID uuid.UUID, kind Part
 
 // resolveSpec turns a build spec into a compatibility input, reading the
 // catalog parts it names.
-func (s *Service) resolveSpec(ctx context.Context, orgID, locationID uuid.UUID, raw json.RawMessage) (CompatibilityInput, BuildParts, string, error) {
-	var spec BuildSpec
-	if err := strictjson.Unmarshal(raw, &spec); err != nil {
-		return CompatibilityInput{}, BuildParts{}, "", field.Under("/spec", err)
-	}
+func (s *Service) resolveSpec(ctx context.Context, orgID, locationID uuid.UUID, spec BuildSpec) (CompatibilityInput, BuildParts, string, error) {
 	var parts BuildParts
 	var errs []error
 	hub := specPart(ctx, s, orgID, PartHub, spec.Hub, spec.HubID, "hub", true, &parts.Hub, &errs)
@@ -311,13 +309,9 @@ func (s *Service) CreateBuild(ctx context.Context, p Principal, in BuildInput) (
 	if snap.Cautions == nil {
 		snap.Cautions = []string{}
 	}
-	snapJSON, err := json.Marshal(snap)
-	if err != nil {
-		return Build{}, err
-	}
 	now := s.now().UTC()
 	b := Build{ID: uuid.Must(uuid.NewV7()), OrgID: p.OrgID, LocationID: in.LocationID, ExternalRef: in.ExternalRef,
-		Status: BuildDraft, Spec: in.Spec, Snapshot: snap, SnapshotJSON: snapJSON, Version: 1, CreatedAt: now, UpdatedAt: now}
+		Status: BuildDraft, Spec: in.Spec, Snapshot: snap, Version: 1, CreatedAt: now, UpdatedAt: now}
 	if err := s.store.CreateBuild(ctx, b); err != nil {
 		return Build{}, err
 	}
@@ -350,16 +344,15 @@ func targetReadings(cal *Calibration, in CompatibilityInput, t Sides) (*TargetRe
 	for _, side := range []struct {
 		name string
 		n    float64
-		dst  *json.RawMessage
+		dst  *Aim
 	}{{"left", t.Left, &out.Left}, {"right", t.Right, &out.Right}} {
 		tg, err := cal.Model.TargetForSpoke(in.Spoke, side.n)
 		if err != nil {
-			msg := strings.TrimPrefix(err.Error(), "json: ")
-			*side.dst, _ = json.Marshal(map[string]string{"refused": msg})
-			cautions = append(cautions, fmt.Sprintf("The %s side's target reading could not be computed from the location's tensiometer calibration (%s); calibrate the tool for this spoke before tensioning.", side.name, msg))
+			side.dst.Refused = err.Error()
+			cautions = append(cautions, fmt.Sprintf("The %s side's target reading could not be computed from the location's tensiometer calibration (%s); calibrate the tool for this spoke before tensioning.", side.name, err.Error()))
 			continue
 		}
-		*side.dst, _ = json.Marshal(tg)
+		side.dst.Target = &tg
 		cautions = append(cautions, tg.Cautions...)
 	}
 	return out, cautions
@@ -388,11 +381,9 @@ func (s *Service) catalogWashers(ctx context.Context, orgID uuid.UUID) ([]fit.Ca
 	}
 	out := make([]fit.CatalogWasher, 0, len(ps))
 	for _, p := range ps {
-		var w fit.Washer
-		if err := strictjson.Unmarshal(p.Dimensions, &w); err != nil {
-			continue // a part whose dimensions no longer decode is not proposed
+		if w, ok := p.Dimensions.(*fit.Washer); ok && w != nil {
+			out = append(out, fit.CatalogWasher{Washer: *w, PartID: p.ID.String()})
 		}
-		out = append(out, fit.CatalogWasher{Washer: w, PartID: p.ID.String()})
 	}
 	return out, nil
 }

@@ -1,9 +1,7 @@
 package service
 
 import (
-	"bytes"
 	"context"
-	"encoding/json"
 	"errors"
 	"fmt"
 	"math"
@@ -18,7 +16,6 @@ import (
 	"wheelbench/service/fit"
 	"wheelbench/service/geometry"
 	"wheelbench/service/spoke"
-	"wheelbench/strictjson"
 )
 
 // PartKind is what a catalog part is.
@@ -43,43 +40,88 @@ func (k PartKind) Valid() bool {
 	return false
 }
 
-// Part is a catalog entry with its measured dimensions: for each kind the
-// JSON object the compatibility check takes in its place (a hub's is the
-// check's "hub" object, and so on).
+// Part is a catalog entry with its measured dimensions: for each kind what
+// the compatibility check takes in its place (see PartKind.NewDimensions).
 type Part struct {
-	ID         uuid.UUID       `json:"id"`
-	OrgID      uuid.UUID       `json:"-"`
-	Kind       PartKind        `json:"kind"`
-	SKU        string          `json:"sku"`
-	Name       string          `json:"name"`
-	PriceMinor int64           `json:"price_minor"`
-	Currency   string          `json:"currency"`
-	Dimensions json.RawMessage `json:"dimensions"`
-	Version    int64           `json:"-"`
-	CreatedAt  time.Time       `json:"created_at"`
-	UpdatedAt  time.Time       `json:"updated_at"`
+	ID         uuid.UUID `json:"id"`
+	OrgID      uuid.UUID `json:"-"`
+	Kind       PartKind  `json:"kind"`
+	SKU        string    `json:"sku"`
+	Name       string    `json:"name"`
+	PriceMinor int64     `json:"price_minor"`
+	Currency   string    `json:"currency"`
+	// Dimensions is the value PartKind.NewDimensions makes for Kind, filled.
+	Dimensions any       `json:"dimensions"`
+	Version    int64     `json:"-"`
+	CreatedAt  time.Time `json:"created_at"`
+	UpdatedAt  time.Time `json:"updated_at"`
 }
 
 // ETag is the part's entity tag.
 func (p Part) ETag() string { return ETag(p.ID, p.Version) }
 
-// PartInput creates a part.
+// NewDimensions returns a new, empty value of what a part of kind k
+// measures — the compatibility check's part: *geometry.Hub, *geometry.Rim,
+// *spoke.Spec, *fit.Nipple, *fit.Washer or *fit.Tyre — or nil for an
+// unknown kind. Readers of stored or sent dimensions fill it.
+func (k PartKind) NewDimensions() any {
+	switch k {
+	case PartHub:
+		return new(geometry.Hub)
+	case PartRim:
+		return new(geometry.Rim)
+	case PartSpoke:
+		return new(spoke.Spec)
+	case PartNipple:
+		return new(fit.Nipple)
+	case PartWasher:
+		return new(fit.Washer)
+	case PartTyre:
+		return new(fit.Tyre)
+	}
+	return nil
+}
+
+// holds reports whether dims is a value of what kind k measures.
+func (k PartKind) holds(dims any) bool {
+	switch d := dims.(type) {
+	case *geometry.Hub:
+		return k == PartHub && d != nil
+	case *geometry.Rim:
+		return k == PartRim && d != nil
+	case *spoke.Spec:
+		return k == PartSpoke && d != nil
+	case *fit.Nipple:
+		return k == PartNipple && d != nil
+	case *fit.Washer:
+		return k == PartWasher && d != nil
+	case *fit.Tyre:
+		return k == PartTyre && d != nil
+	}
+	return false
+}
+
+// PartInput creates a part. Dimensions is the value NewDimensions makes
+// for Kind, filled.
 type PartInput struct {
 	Kind       PartKind
 	SKU        string
 	Name       string
 	PriceMinor int64
 	Currency   string
-	Dimensions json.RawMessage
+	Dimensions any
 }
 
-// PartPatch changes a part; nil leaves a field. The kind never changes.
+// PartPatch changes a part; nil leaves a field. The kind never changes, so
+// new dimensions are read for it: Dimensions, when not nil, returns the
+// value NewDimensions makes for the part's kind, filled (the HTTP layer
+// decodes them from the request there).
 type PartPatch struct {
 	SKU        *string
 	Name       *string
 	PriceMinor *int64
 	Currency   *string
-	Dimensions json.RawMessage
+	Dimensions func(PartKind) (any, error)
 }
 
 // PartFilter narrows a part list.
@@ -111,66 +153,18 @@ var (
 	skuRE      = regexp.MustCompile(`^[A-Za-z0-9][A-Za-z0-9._/-]{0,63}$`)
 )
 
-// decodeDimensions checks a part's dimensions against the fit check's
-// shape for its kind: strict JSON, every size finite and positive.
-func decodeDimensions(kind PartKind, raw json.RawMessage) (json.RawMessage, error) {
-	var target any
-	switch kind {
-	case PartHub:
-		target = &geometry.Hub{}
-	case PartRim:
-		target = &geometry.Rim{}
-	case PartSpoke:
-		target = &spoke.Spec{}
-	case PartNipple:
-		target = &fit.Nipple{}
-	case PartWasher:
-		target = &fit.Washer{}
-	case PartTyre:
-		target = &fit.Tyre{}
-	default:
-		return nil, field.Invalid("/kind", "kind must be hub, rim, spoke, nipple, washer or tyre")
+// checkDimensions refuses a part without dimensions of its kind. The sizes
+// the fit rules need are checked when a build uses the part.
+func checkDimensions(kind PartKind, dims any) error {
+	switch {
+	case !kind.Valid():
+		return field.Invalid("/kind", "kind must be hub, rim, spoke, nipple, washer or tyre")
+	case dims == nil:
+		return field.Invalid("/dimensions", "dimensions are required: the %s object the compatibility check takes", kind)
+	case !kind.holds(dims):
+		return field.Invalid("/dimensions", "dimensions must be the %s object the compatibility check takes", kind)
 	}
-	if len(bytes.TrimSpace(raw)) == 0 || bytes.Equal(bytes.TrimSpace(raw), []byte("null")) {
-		return nil, field.Invalid("/dimensions", "dimensions are required: the %s object the compatibility check takes", kind)
-	}
-	if err := strictjson.Unmarshal(raw, target); err != nil {
-		return nil, field.Under("/dimensions", err)
-	}
-	// Every number in the object must be finite and not negative; sizes the
-	// fit check needs are checked there when a build uses the part.
-	var generic any
-	_ = json.Unmarshal(raw, &generic)
-	if ptr, ok := firstBadNumber(generic, "/dimensions"); !ok {
-		return nil, field.Invalid(ptr, "must be a finite number, not negative")
-	}
-	out, err := json.Marshal(target)
-	if err != nil {
-		return nil, err
-	}
-	return out, nil
-}
-
-func firstBadNumber(v any, at string) (string, bool) {
-	switch x := v.(type) {
-	case float64:
-		if x < 0 || math.IsInf(x, 0) || math.IsNaN(x) {
-			return at, false
-		}
-	case map[string]any:
-		for k, e := range x {
-			if p, ok := firstBadNumber(e, at+"/"+k); !ok {
-				return p, false
-			}
-		}
-	case []any:
-		for i, e := range x {
-			if p, ok := firstBadNumber(e, fmt.Sprintf("%s/%d", at, i)); !ok {
-				return p, false
-			}
-		}
-	}
-	return "", true
+	return nil
 }
 
 func validatePartFields(sku, name *string, price *int64, currency *string) error {
@@ -195,13 +189,12 @@ func (s *Service) CreatePart(ctx context.Context, p Principal, in PartInput) (Pa
 	if err := validatePartFields(&in.SKU, &in.Name, &in.PriceMinor, &in.Currency); err != nil {
 		return Part{}, err
 	}
-	dims, err := decodeDimensions(in.Kind, in.Dimensions)
-	if err != nil {
+	if err := checkDimensions(in.Kind, in.Dimensions); err != nil {
 		return Part{}, err
 	}
 	now := s.now().UTC()
 	part := Part{ID: uuid.Must(uuid.NewV7()), OrgID: p.OrgID, Kind: in.Kind, SKU: in.SKU, Name: strings.TrimSpace(in.Name),
-		PriceMinor: in.PriceMinor, Currency: in.Currency, Dimensions: dims, Version: 1, CreatedAt: now, UpdatedAt: now}
+		PriceMinor: in.PriceMinor, Currency: in.Currency, Dimensions: in.Dimensions, Version: 1, CreatedAt: now, UpdatedAt: now}
 	if err := s.store.CreatePart(ctx, part); err != nil {
 		if errors.Is(err, ErrConflict) {
 			return Part{}, field.Unprocessable("/sku", "another part already has this sku")
@@ -236,12 +229,16 @@ func (s *Service) UpdatePart(ctx context.Context, p Principal, id uuid.UUID, ifM
 	if err := checkIfMatch(ifMatch, cur.ETag(), "part"); err != nil {
 		return Part{}, err
 	}
+	var dims any
 	if patch.Dimensions != nil {
-		if patch.Dimensions, err = decodeDimensions(cur.Kind, patch.Dimensions); err != nil {
+		if dims, err = patch.Dimensions(cur.Kind); err != nil {
+			return Part{}, err
+		}
+		if err := checkDimensions(cur.Kind, dims); err != nil {
 			return Part{}, err
 		}
 	}
-	out, err := s.store.UpdatePart(ctx, p.OrgID, id, cur.Version, patch)
+	out, err := s.store.UpdatePart(ctx, p.OrgID, id, cur.Version, patch, dims)
 	if errors.Is(err, ErrConflict) {
 		return Part{}, field.Unprocessable("/sku", "another part already has this sku")
 	}

@@ -43,7 +43,9 @@ type Store interface {
 	CreatePart(ctx context.Context, p Part) error
 	GetPart(ctx context.Context, orgID, id uuid.UUID) (Part, error)
 	ListParts(ctx context.Context, orgID uuid.UUID, f PartFilter, p Page) ([]Part, error)
-	UpdatePart(ctx context.Context, orgID, id uuid.UUID, version int64, p PartPatch) (Part, error)
+	// UpdatePart applies p (its Dimensions aside) and, when not nil, the new
+	// dimensions dims, if the part is still at version.
+	UpdatePart(ctx context.Context, orgID, id uuid.UUID, version int64, p PartPatch, dims any) (Part, error)
 	GetPartStock(ctx context.Context, orgID, partID uuid.UUID) (PartStock, error)
 	// PutPartStock replaces the levels when the stock is still at version:
 	// every location's, or only location's when it is not nil (levels then

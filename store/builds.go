@@ -4,6 +4,7 @@ import (
 	"context"
 	"encoding/json"
 	"errors"
+	"fmt"
 	"time"
 
 	"github.com/google/uuid"
@@ -15,16 +16,26 @@ import (
 
 const buildColumns = `org_id, id, location_id, external_ref, status, spec, snapshot, notes, version, created_at, updated_at`
 
+// scanBuild reads a build row. The spec and snapshot columns hold the
+// JSON of service.BuildSpec and service.BuildSnapshot (rows written before
+// the spec was kept typed hold the spec as it was sent, which reads the
+// same).
 func scanBuild(row pgx.CollectableRow) (service.Build, error) {
 	var b service.Build
 	var status string
-	var snap []byte
-	err := row.Scan(&b.OrgID, &b.ID, &b.LocationID, &b.ExternalRef, &status, &b.Spec, &snap, &b.Notes, &b.Version, &b.CreatedAt, &b.UpdatedAt)
+	var spec, snap []byte
+	err := row.Scan(&b.OrgID, &b.ID, &b.LocationID, &b.ExternalRef, &status, &spec, &snap, &b.Notes, &b.Version, &b.CreatedAt, &b.UpdatedAt)
 	if err != nil {
 		return b, err
 	}
 	b.Status = service.BuildStatus(status)
-	return b, json.Unmarshal(snap, &b.Snapshot)
+	if err := json.Unmarshal(spec, &b.Spec); err != nil {
+		return b, fmt.Errorf("build %s spec: %w", b.ID, err)
+	}
+	if err := json.Unmarshal(snap, &b.Snapshot); err != nil {
+		return b, fmt.Errorf("build %s snapshot: %w", b.ID, err)
+	}
+	return b, nil
 }
 
 // CreateBuild inserts b and its build.created change. b's location must be
@@ -33,11 +44,13 @@ func scanBuild(row pgx.CollectableRow) (service.Build, error) {
 // locations holds it in the database (migration 00010).
 func (s *Store) CreateBuild(ctx context.Context, b service.Build) (err error) {
 	defer wrap(&err, "create build")
-	snap := []byte(b.SnapshotJSON)
-	if snap == nil {
-		if snap, err = json.Marshal(b.Snapshot); err != nil {
-			return err
-		}
+	spec, err := json.Marshal(b.Spec)
+	if err != nil {
+		return err
+	}
+	snap, err := json.Marshal(b.Snapshot)
+	if err != nil {
+		return err
 	}
 	args, err := changeArgs(b.OrgID, service.Change{Type: "build.created", ResourceID: b.ID, LocationID: &b.LocationID, Data: buildSummary(b)})
 	if err != nil {
@@ -47,7 +60,7 @@ func (s *Store) CreateBuild(ctx context.Context, b service.Build) (err error) {
 	// uuid.UUID's driver.Valuer (a string) first fails the binary encoding,
 	// builds an error, and is parsed back.
 	_, err = s.db(ctx).Exec(ctx, createBuildQuery, [16]byte(b.OrgID), [16]byte(b.ID), [16]byte(b.LocationID), b.ExternalRef, string(b.Status),
-		[]byte(b.Spec), snap, b.Notes, b.Version, b.CreatedAt, b.UpdatedAt,
+		spec, snap, b.Notes, b.Version, b.CreatedAt, b.UpdatedAt,
 		args[1], args[4], args[5], args[6], args[7])
 	return err
 }

@@ -12,6 +12,7 @@ import (
 	"github.com/jackc/pgx/v5/pgxpool"
 
 	"wheelbench/service"
+	"wheelbench/service/fit"
 	"wheelbench/store"
 	"wheelbench/store/storetest"
 )
@@ -246,7 +247,7 @@ func TestOutboxMatchAgreesWithMatchesEvent(t *testing.T) {
 		t.Fatal(err)
 	}
 	if err := f.st.CreatePart(ctx, service.Part{ID: uuid.Must(uuid.NewV7()), OrgID: f.org, Kind: service.PartWasher, SKU: "W1",
-		Name: "washer", Currency: "EUR", Dimensions: []byte(`{}`), Version: 1, CreatedAt: time.Now(), UpdatedAt: time.Now()}); err != nil {
+		Name: "washer", Currency: "EUR", Dimensions: &fit.Washer{}, Version: 1, CreatedAt: time.Now(), UpdatedAt: time.Now()}); err != nil {
 		t.Fatal(err)
 	}
 	rows, err := f.pool.Query(ctx, `SELECT endpoint_id, type FROM webhook_deliveries`)
