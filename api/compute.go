@@ -12,9 +12,9 @@ import (
 	"github.com/go-json-experiment/json/jsontext"
 	"github.com/labstack/echo/v4"
 
+	"wheelbench/api/strictjson"
 	"wheelbench/service"
 	"wheelbench/service/geometry"
-	"wheelbench/strictjson"
 )
 
 // BatchBodyLimit is the body limit of POST /v1/spoke-lengths/batch.

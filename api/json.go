@@ -10,8 +10,8 @@ import (
 	"github.com/google/uuid"
 	"github.com/labstack/echo/v4"
 
+	"wheelbench/api/strictjson"
 	"wheelbench/service"
-	"wheelbench/strictjson"
 )
 
 // decode reads the body into v under the one strict policy (package

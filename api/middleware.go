@@ -19,8 +19,8 @@ import (
 	"github.com/getkin/kin-openapi/routers"
 	"github.com/labstack/echo/v4"
 
+	"wheelbench/api/strictjson"
 	"wheelbench/service"
-	"wheelbench/strictjson"
 )
 
 // principal returns the authenticated caller of c.

@@ -7,9 +7,9 @@ import (
 	"github.com/go-json-experiment/json/jsontext"
 	"github.com/labstack/echo/v4"
 
+	"wheelbench/api/strictjson"
 	"wheelbench/service"
 	"wheelbench/service/field"
-	"wheelbench/strictjson"
 )
 
 type partCreateJSON struct {

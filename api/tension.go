@@ -11,11 +11,11 @@ import (
 	"github.com/labstack/echo/v4"
 
 	"wheelbench/api/chart"
+	"wheelbench/api/strictjson"
 	"wheelbench/service"
 	"wheelbench/service/field"
 	"wheelbench/service/spoke"
 	"wheelbench/service/tension"
-	"wheelbench/strictjson"
 )
 
 type toolJSON struct {

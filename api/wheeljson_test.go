@@ -12,11 +12,11 @@ import (
 
 	"github.com/go-json-experiment/json/jsontext"
 
+	"wheelbench/api/strictjson"
 	"wheelbench/service"
 	"wheelbench/service/fit"
 	"wheelbench/service/geometry"
 	"wheelbench/service/spoke"
-	"wheelbench/strictjson"
 )
 
 // wheelSeeds are bodies the fast path must agree on with the strict decoder:

@@ -6,7 +6,6 @@ import (
 	"fmt"
 
 	"github.com/google/uuid"
-
 )
 
 // BuildSheet is what a build's bench sheet shows, read for the view that

@@ -73,6 +73,9 @@ func TestUnmarshalRefuses(t *testing.T) {
 		{"cut short", `{"s": "x"`, "", "the body is empty or cut short"},
 		{"empty", ``, "", "the body is empty or cut short"},
 		{"not JSON", `{"s": x}`, "/s", "is not valid JSON (at byte 6)"},
+		{"valid UTF-8 out of place", `{"s": é}`, "/s", "is not valid JSON (at byte 6)"},
+		{"data after the value, no space", `{"s": "x"}{}`, "", "the body has data after its JSON value"},
+		{"bad byte after the value", "{\"s\": \"x\"} \xff", "", "the body has data after its JSON value"},
 		{"nullable's own refusal", `{"opt": "x"}`, "/opt", "must be a number, not a string"},
 	} {
 		t.Run(c.name, func(t *testing.T) {
@@ -125,6 +128,8 @@ func TestCheck(t *testing.T) {
 		{`[1, 2`, "", "the body is empty or cut short"},
 		{strings.Repeat("[", 10001) + strings.Repeat("]", 10001), "", "the body nests arrays and objects more than 10000 deep"},
 		{strings.Repeat(`{"a":`, 10001) + "1" + strings.Repeat("}", 10001), "", "the body nests arrays and objects more than 10000 deep"},
+		// As deep as allowed, but a bad character inside: not a depth error.
+		{strings.Repeat("[", 10000) + "x" + strings.Repeat("]", 10000), strings.Repeat("/0", 10000), "is not valid JSON (at byte 10000)"},
 	} {
 		err := Check([]byte(c.body))
 		var fe *field.Error
