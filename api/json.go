@@ -25,10 +25,6 @@ func decode(c echo.Context, v any) error {
 	if err != nil {
 		return err // a bodyError or *http.MaxBytesError, with its own status
 	}
-	return decodeBytes(body, v)
-}
-
-func decodeBytes(body []byte, v any) error {
 	return strictjson.Unmarshal(body, v)
 }
 
