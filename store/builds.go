@@ -56,23 +56,23 @@ func (s *Store) CreateBuild(ctx context.Context, b service.Build) (err error) {
 	if err != nil {
 		return err
 	}
-	// UUIDs go as [16]byte: pgx encodes those straight to binary, while
-	// uuid.UUID's driver.Valuer (a string) first fails the binary encoding,
-	// builds an error, and is parsed back.
-	_, err = s.db(ctx).Exec(ctx, createBuildQuery, [16]byte(b.OrgID), [16]byte(b.ID), [16]byte(b.LocationID), b.ExternalRef, string(b.Status),
-		spec, snap, b.Notes, b.Version, b.CreatedAt, b.UpdatedAt,
-		args[1], args[4], args[5], args[6], args[7])
+	// UUIDs go as [16]byte (changeArgs does the same): pgx encodes those
+	// straight to binary, while uuid.UUID's driver.Valuer (a string) first
+	// fails the binary encoding, builds an error, and is parsed back.
+	_, err = s.db(ctx).Exec(ctx, createBuildStatement, args[0], args[1], args[2], args[3], args[4], args[5], args[6], args[7],
+		b.ExternalRef, string(b.Status), spec, snap, b.Notes, b.Version, b.CreatedAt, b.UpdatedAt)
 	return err
 }
 
-// createBuildQuery inserts a build and its build.created change (feed row
-// and outbox rows) in one statement: one round trip, one transaction (the
-// request's, when ctx carries one), and for PostgreSQL one statement to run
-// rather than two. The change's organisation, resource and location are
-// the build's $1, $2 and $3.
-var createBuildQuery = changeSQL(`build AS (
-	    INSERT INTO builds (`+buildColumns+`) VALUES ($1, $2, $3, $4, $5, $6, $7, $8, $9, $10, $11)),
-	  `, changeParams{1, 12, 2, 3, 13, 14, 15, 16})
+// createBuildStatement inserts a build and its build.created change (feed
+// row and outbox rows) in one statement: one round trip, one transaction
+// (the request's, when ctx carries one), and for PostgreSQL one statement
+// to run rather than two. $1 to $8 are the change's (changeInsert): its
+// organisation, resource and location ($1, $3, $4) are the build's; $9 on
+// are the build's other columns.
+const createBuildStatement = `WITH build AS (
+	    INSERT INTO builds (` + buildColumns + `) VALUES ($1, $3, $4, $9, $10, $11, $12, $13, $14, $15, $16)),
+	  ` + changeInsert
 
 // buildSummary is a build's change-feed payload: everything but the
 // (large) snapshot, which the resource itself serves. Its fields are in
