@@ -279,14 +279,31 @@ func (s *Service) GetQuote(ctx context.Context, p Principal, id uuid.UUID) (Quot
 
 // AcceptQuote orders the quote's build and takes its stock, atomically:
 // when any location is short the whole acceptance is refused (409) and
-// nothing changes; stock never goes negative.
+// nothing changes; stock never goes negative. Only an open quote that has
+// not expired may be accepted (acceptable).
 func (s *Service) AcceptQuote(ctx context.Context, p Principal, id uuid.UUID) (Quote, error) {
 	if p.Bound() { // a quote's location never changes: checked before, it holds
 		if _, err := s.GetQuote(ctx, p, id); err != nil {
 			return Quote{}, err
 		}
 	}
-	return s.store.AcceptQuote(ctx, p.OrgID, id, s.now().UTC())
+	now := s.now().UTC()
+	return s.store.AcceptQuote(ctx, p.OrgID, id, now, func(q Quote) error { return q.acceptable(now) })
+}
+
+// acceptable says whether q may be accepted at now: it is open (not
+// accepted already, nor superseded by a newer quote of its build) and not
+// past its validity.
+func (q Quote) acceptable(now time.Time) error {
+	switch {
+	case q.Status == QuoteAccepted:
+		return fmt.Errorf("%w: the quote is already accepted", ErrConflict)
+	case q.Status != QuoteOpen:
+		return fmt.Errorf("%w: the quote was superseded by a newer one", ErrConflict)
+	case now.After(q.ValidUntil):
+		return fmt.Errorf("%w: the quote expired on %s; ask for a new one", ErrConflict, q.ValidUntil.Format(time.DateOnly))
+	}
+	return nil
 }
 
 // hasFinding reports whether fs holds code for side.

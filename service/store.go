@@ -68,10 +68,11 @@ type Store interface {
 	// build from status from to quoted.
 	CreateQuote(ctx context.Context, q Quote, from BuildStatus) error
 	GetQuote(ctx context.Context, orgID, id uuid.UUID) (Quote, error)
-	// AcceptQuote accepts an open, unexpired quote of a quoted build: takes
-	// its stock needs (ErrStockShort when any is short, nothing changed)
-	// and moves the build to ordered, in one transaction.
-	AcceptQuote(ctx context.Context, orgID, id uuid.UUID, now time.Time) (Quote, error)
+	// AcceptQuote locks the quote, lets check refuse it as it now is, then
+	// takes its stock needs (ErrStockShort when any is short, nothing
+	// changed), marks it accepted at now and moves its quoted build to
+	// ordered, in one transaction.
+	AcceptQuote(ctx context.Context, orgID, id uuid.UUID, now time.Time, check func(Quote) error) (Quote, error)
 
 	// LocationWithCalibration reads a location and the newest calibration of
 	// its default tensiometer (the most recently added tool there that has
