@@ -118,18 +118,4 @@ type Store interface {
 	UpdateWebhookEndpoint(ctx context.Context, orgID, id uuid.UUID, version int64, p WebhookEndpointPatch) (WebhookEndpoint, error)
 	// DeleteWebhookEndpoint removes the endpoint and its deliveries.
 	DeleteWebhookEndpoint(ctx context.Context, orgID, id uuid.UUID) error
-	// ClaimWebhookDeliveries takes up to n pending deliveries that are due,
-	// of active endpoints, in any organisation, skipping rows another
-	// transaction holds (FOR UPDATE SKIP LOCKED): each gets its attempt
-	// counted and its next attempt moved lease ahead, and the claim commits
-	// before it returns.
-	ClaimWebhookDeliveries(ctx context.Context, n int, lease time.Duration) ([]WebhookDelivery, error)
-	// FinishWebhookDelivery records an attempt's outcome if the delivery is
-	// still pending at r.Delivery.Attempt (nobody re-claimed it); recorded
-	// reports whether it was. OutcomeGone also switches the endpoint off and
-	// cancels its other pending deliveries.
-	FinishWebhookDelivery(ctx context.Context, r WebhookResult) (recorded bool, err error)
-	// ReleaseWebhookDeliveries hands claimed, unsent deliveries back: due
-	// now, the attempt uncounted.
-	ReleaseWebhookDeliveries(ctx context.Context, ds []WebhookDelivery) error
 }
