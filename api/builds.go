@@ -73,14 +73,7 @@ func (s *Server) listBuilds(c echo.Context) error {
 	if err != nil {
 		return err
 	}
-	out := listJSON[service.Build]{Items: bs}
-	if out.Items == nil {
-		out.Items = []service.Build{}
-	}
-	if len(bs) > 0 {
-		out.NextCursor = nextCursor(len(bs), pg.Limit, bs[len(bs)-1].ID)
-	}
-	return c.JSON(http.StatusOK, out)
+	return writePage(c, bs, pg, func(b service.Build) uuid.UUID { return b.ID }, as)
 }
 
 type buildPatchJSON struct {
@@ -198,16 +191,9 @@ func (s *Server) listBuildAudits(c echo.Context) error {
 	if err != nil {
 		return err
 	}
-	as, err := s.svc.ListBuildAudits(c.Request().Context(), principal(c), id, pg)
+	audits, err := s.svc.ListBuildAudits(c.Request().Context(), principal(c), id, pg)
 	if err != nil {
 		return err
 	}
-	out := listJSON[service.BuildTensionAudit]{Items: as}
-	if out.Items == nil {
-		out.Items = []service.BuildTensionAudit{}
-	}
-	if len(as) > 0 {
-		out.NextCursor = nextCursor(len(as), pg.Limit, as[len(as)-1].ID)
-	}
-	return c.JSON(http.StatusOK, out)
+	return writePage(c, audits, pg, func(a service.BuildTensionAudit) uuid.UUID { return a.ID }, as)
 }

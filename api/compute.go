@@ -112,7 +112,7 @@ func readBody(r *http.Request, buf func(n int) []byte) ([]byte, error) {
 // the 400 that bodyReader gives when the connection says so.
 func shortBody(err error) error {
 	if err == io.ErrUnexpectedEOF {
-		return &bodyError{status: http.StatusBadRequest, detail: "The body ended before its declared Content-Length."}
+		return &httpProblem{status: http.StatusBadRequest, detail: "The body ended before its declared Content-Length."}
 	}
 	return err
 }

@@ -12,6 +12,7 @@ import (
 
 	"wheelbench/api/strictjson"
 	"wheelbench/service"
+	"wheelbench/service/field"
 )
 
 // decode reads the body into v under the one strict policy (package
@@ -23,7 +24,7 @@ import (
 func decode(c echo.Context, v any) error {
 	body, err := io.ReadAll(c.Request().Body)
 	if err != nil {
-		return err // a bodyError or *http.MaxBytesError, with its own status
+		return err // an httpProblem or *http.MaxBytesError, with its own status
 	}
 	return strictjson.Unmarshal(body, v)
 }
@@ -45,8 +46,7 @@ func page(c echo.Context) (service.Page, error) {
 	if s := c.QueryParam("limit"); s != "" {
 		n, err := strconv.Atoi(s)
 		if err != nil || n < 1 || n > service.MaxPageSize {
-			return p, &validationError{status: http.StatusBadRequest, detail: "Bad paging parameters.",
-				fields: []FieldProblem{{Pointer: "query:limit", Message: fmt.Sprintf("limit must be an integer from 1 to %d", service.MaxPageSize)}}}
+			return p, field.Invalid("query:limit", "limit must be an integer from 1 to %d", service.MaxPageSize)
 		}
 		p.Limit = n
 	}
@@ -57,18 +57,32 @@ func page(c echo.Context) (service.Page, error) {
 			id, err = uuid.FromBytes(b)
 		}
 		if err != nil {
-			return p, &validationError{status: http.StatusBadRequest, detail: "Bad paging parameters.",
-				fields: []FieldProblem{{Pointer: "query:cursor", Message: "cursor must be a next_cursor this API returned"}}}
+			return p, field.Invalid("query:cursor", "cursor must be a next_cursor this API returned")
 		}
 		p.After = id
 	}
 	return p, nil
 }
 
-// nextCursor returns the cursor after last when the page was full.
-func nextCursor(n, limit int, last uuid.UUID) string {
-	if n < limit {
-		return ""
-	}
-	return base64.RawURLEncoding.EncodeToString(last[:])
+// listJSON is one page of a list.
+type listJSON[T any] struct {
+	Items      []T    `json:"items"`
+	NextCursor string `json:"next_cursor,omitempty"`
 }
+
+// writePage answers one page of items, each as view writes it ([] for
+// none), with the cursor after the last item when the page is full.
+func writePage[T, V any](c echo.Context, items []T, pg service.Page, id func(T) uuid.UUID, view func(T) V) error {
+	out := listJSON[V]{Items: make([]V, 0, len(items))}
+	for _, it := range items {
+		out.Items = append(out.Items, view(it))
+	}
+	if n := len(items); n > 0 && n >= pg.Limit {
+		last := id(items[n-1])
+		out.NextCursor = base64.RawURLEncoding.EncodeToString(last[:])
+	}
+	return c.JSON(http.StatusOK, out)
+}
+
+// as is the view of an item that is written as it is.
+func as[T any](t T) T { return t }

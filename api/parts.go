@@ -5,6 +5,7 @@ import (
 	"net/http"
 
 	"github.com/go-json-experiment/json/jsontext"
+	"github.com/google/uuid"
 	"github.com/labstack/echo/v4"
 
 	"wheelbench/api/strictjson"
@@ -63,14 +64,7 @@ func (s *Server) listParts(c echo.Context) error {
 	if err != nil {
 		return err
 	}
-	out := listJSON[service.Part]{Items: ps}
-	if out.Items == nil {
-		out.Items = []service.Part{}
-	}
-	if len(ps) > 0 {
-		out.NextCursor = nextCursor(len(ps), pg.Limit, ps[len(ps)-1].ID)
-	}
-	return c.JSON(http.StatusOK, out)
+	return writePage(c, ps, pg, func(p service.Part) uuid.UUID { return p.ID }, as)
 }
 
 type partPatchJSON struct {

@@ -5,7 +5,6 @@ import (
 	"net/http"
 	"strconv"
 	"strings"
-	"time"
 
 	"github.com/google/uuid"
 	"github.com/labstack/echo/v4"
@@ -18,21 +17,10 @@ import (
 	"wheelbench/service/tension"
 )
 
-type toolJSON struct {
-	ID             uuid.UUID `json:"id"`
-	LocationID     uuid.UUID `json:"location_id"`
-	Label          string    `json:"label"`
-	Serial         string    `json:"serial"`
-	UnitMM         float64   `json:"unit_mm"`
-	MeasuredSpanMM *float64  `json:"measured_span_mm,omitempty"`
-	Notes          string    `json:"notes"`
-	CreatedAt      time.Time `json:"created_at"`
-	UpdatedAt      time.Time `json:"updated_at"`
-}
-
-func toToolJSON(t service.Tool) toolJSON {
-	return toolJSON{ID: t.ID, LocationID: t.LocationID, Label: t.Label, Serial: t.Serial, UnitMM: t.UnitMM,
-		MeasuredSpanMM: t.MeasuredSpanMM, Notes: t.Notes, CreatedAt: t.CreatedAt.UTC(), UpdatedAt: t.UpdatedAt.UTC()}
+// utcTool is a tool as answered: its times in UTC.
+func utcTool(t service.Tool) service.Tool {
+	t.CreatedAt, t.UpdatedAt = t.CreatedAt.UTC(), t.UpdatedAt.UTC()
+	return t
 }
 
 func (s *Server) listTools(c echo.Context) error {
@@ -44,14 +32,7 @@ func (s *Server) listTools(c echo.Context) error {
 	if err != nil {
 		return err
 	}
-	out := listJSON[toolJSON]{Items: make([]toolJSON, 0, len(ts))}
-	for _, t := range ts {
-		out.Items = append(out.Items, toToolJSON(t))
-	}
-	if len(ts) > 0 {
-		out.NextCursor = nextCursor(len(ts), p.Limit, ts[len(ts)-1].ID)
-	}
-	return c.JSON(http.StatusOK, out)
+	return writePage(c, ts, p, func(t service.Tool) uuid.UUID { return t.ID }, utcTool)
 }
 
 type toolCreateJSON struct {
@@ -75,7 +56,7 @@ func (s *Server) createTool(c echo.Context) error {
 	}
 	c.Response().Header().Set("ETag", t.ETag())
 	c.Response().Header().Set("Location", "/v1/tools/"+t.ID.String())
-	return c.JSON(http.StatusCreated, toToolJSON(t))
+	return c.JSON(http.StatusCreated, utcTool(t))
 }
 
 func (s *Server) getTool(c echo.Context) error {
@@ -88,7 +69,7 @@ func (s *Server) getTool(c echo.Context) error {
 		return err
 	}
 	c.Response().Header().Set("ETag", t.ETag())
-	return c.JSON(http.StatusOK, toToolJSON(t))
+	return c.JSON(http.StatusOK, utcTool(t))
 }
 
 // nullableFloat tells an absent field (Set false) from null (Set, Value
@@ -135,7 +116,7 @@ func (s *Server) updateTool(c echo.Context) error {
 		return err
 	}
 	c.Response().Header().Set("ETag", t.ETag())
-	return c.JSON(http.StatusOK, toToolJSON(t))
+	return c.JSON(http.StatusOK, utcTool(t))
 }
 
 type modelParamJSON struct {
@@ -226,14 +207,7 @@ func (s *Server) listCalibrations(c echo.Context) error {
 	if err != nil {
 		return err
 	}
-	out := listJSON[calibrationJSON]{Items: make([]calibrationJSON, 0, len(cs))}
-	for _, cal := range cs {
-		out.Items = append(out.Items, toCalibrationJSON(cal))
-	}
-	if len(cs) > 0 {
-		out.NextCursor = nextCursor(len(cs), p.Limit, cs[len(cs)-1].ID)
-	}
-	return c.JSON(http.StatusOK, out)
+	return writePage(c, cs, p, func(cal service.Calibration) uuid.UUID { return cal.ID }, toCalibrationJSON)
 }
 
 func (s *Server) getCalibration(c echo.Context) error {

@@ -45,14 +45,7 @@ func (s *Server) listWebhookEndpoints(c echo.Context) error {
 	if err != nil {
 		return err
 	}
-	out := listJSON[webhookEndpointJSON]{Items: make([]webhookEndpointJSON, 0, len(es))}
-	for _, e := range es {
-		out.Items = append(out.Items, toWebhookEndpointJSON(e))
-	}
-	if len(es) > 0 {
-		out.NextCursor = nextCursor(len(es), p.Limit, es[len(es)-1].ID)
-	}
-	return c.JSON(http.StatusOK, out)
+	return writePage(c, es, p, func(e service.WebhookEndpoint) uuid.UUID { return e.ID }, toWebhookEndpointJSON)
 }
 
 type webhookEndpointCreateJSON struct {
