@@ -10,21 +10,14 @@ import (
 	"wheelbench/service"
 	"wheelbench/service/field"
 	"wheelbench/service/quote"
-	"wheelbench/service/tension"
 )
 
-type buildCreateJSON struct {
-	Spec        service.BuildSpec `json:"spec"`
-	ExternalRef string            `json:"external_ref"`
-	LocationID  uuid.UUID         `json:"location_id"`
-}
-
 func (s *Server) createBuild(c echo.Context) error {
-	var in buildCreateJSON
+	var in service.BuildInput
 	if err := decode(c, &in); err != nil {
 		return err
 	}
-	b, err := s.svc.CreateBuild(c.Request().Context(), principal(c), service.BuildInput(in))
+	b, err := s.svc.CreateBuild(c.Request().Context(), principal(c), in)
 	if err != nil {
 		return err
 	}
@@ -34,10 +27,7 @@ func (s *Server) createBuild(c echo.Context) error {
 }
 
 func (s *Server) getBuild(c echo.Context) error {
-	id, err := pathID(c)
-	if err != nil {
-		return err
-	}
+	id := pathID(c)
 	b, err := s.svc.GetBuild(c.Request().Context(), principal(c), id)
 	if err != nil {
 		return err
@@ -76,21 +66,13 @@ func (s *Server) listBuilds(c echo.Context) error {
 	return writePage(c, bs, pg, func(b service.Build) uuid.UUID { return b.ID }, as)
 }
 
-type buildPatchJSON struct {
-	Status *service.BuildStatus `json:"status"`
-	Notes  *string              `json:"notes"`
-}
-
 func (s *Server) updateBuild(c echo.Context) error {
-	id, err := pathID(c)
-	if err != nil {
-		return err
-	}
-	var in buildPatchJSON
+	id := pathID(c)
+	var in service.BuildPatch
 	if err := decode(c, &in); err != nil {
 		return err
 	}
-	b, err := s.svc.UpdateBuild(c.Request().Context(), principal(c), id, c.Request().Header.Get("If-Match"), service.BuildPatch(in))
+	b, err := s.svc.UpdateBuild(c.Request().Context(), principal(c), id, c.Request().Header.Get("If-Match"), in)
 	if err != nil {
 		return err
 	}
@@ -136,10 +118,7 @@ func (s *Server) createQuote(c echo.Context) error {
 }
 
 func (s *Server) getQuote(c echo.Context) error {
-	id, err := pathID(c)
-	if err != nil {
-		return err
-	}
+	id := pathID(c)
 	q, err := s.svc.GetQuote(c.Request().Context(), principal(c), id)
 	if err != nil {
 		return err
@@ -148,10 +127,7 @@ func (s *Server) getQuote(c echo.Context) error {
 }
 
 func (s *Server) acceptQuote(c echo.Context) error {
-	id, err := pathID(c)
-	if err != nil {
-		return err
-	}
+	id := pathID(c)
 	q, err := s.svc.AcceptQuote(c.Request().Context(), principal(c), id)
 	if err != nil {
 		return err
@@ -159,23 +135,13 @@ func (s *Server) acceptQuote(c echo.Context) error {
 	return c.JSON(http.StatusOK, q)
 }
 
-type buildAuditJSON struct {
-	CalibrationID uuid.UUID              `json:"calibration_id"`
-	Readings      []tension.AuditReading `json:"readings"`
-	TolerancePct  *float64               `json:"tolerance_pct"`
-	Notes         string                 `json:"notes"`
-}
-
 func (s *Server) createBuildAudit(c echo.Context) error {
-	id, err := pathID(c)
-	if err != nil {
-		return err
-	}
-	var in buildAuditJSON
+	id := pathID(c)
+	var in service.BuildAuditInput
 	if err := decode(c, &in); err != nil {
 		return err
 	}
-	a, err := s.svc.RecordBuildAudit(c.Request().Context(), principal(c), id, service.BuildAuditInput(in))
+	a, err := s.svc.RecordBuildAudit(c.Request().Context(), principal(c), id, in)
 	if err != nil {
 		return err
 	}
@@ -183,10 +149,7 @@ func (s *Server) createBuildAudit(c echo.Context) error {
 }
 
 func (s *Server) listBuildAudits(c echo.Context) error {
-	id, err := pathID(c)
-	if err != nil {
-		return err
-	}
+	id := pathID(c)
 	pg, err := page(c)
 	if err != nil {
 		return err

@@ -53,21 +53,12 @@ func (s *Server) listLocations(c echo.Context) error {
 	return writePage(c, ls, p, func(l service.Location) uuid.UUID { return l.ID }, utcLocation)
 }
 
-type locationCreateJSON struct {
-	Name       string `json:"name"`
-	Code       string `json:"code"`
-	Timezone   string `json:"timezone"`
-	Address    string `json:"address"`
-	TaxRatePPM int64  `json:"tax_rate_ppm"`
-}
-
 func (s *Server) createLocation(c echo.Context) error {
-	var in locationCreateJSON
+	var in service.LocationInput
 	if err := decode(c, &in); err != nil {
 		return err
 	}
-	l, err := s.svc.CreateLocation(c.Request().Context(), principal(c), service.LocationInput{
-		Name: in.Name, Code: in.Code, Timezone: in.Timezone, Address: in.Address, TaxRatePPM: in.TaxRatePPM})
+	l, err := s.svc.CreateLocation(c.Request().Context(), principal(c), in)
 	if err != nil {
 		return err
 	}
@@ -77,10 +68,7 @@ func (s *Server) createLocation(c echo.Context) error {
 }
 
 func (s *Server) getLocation(c echo.Context) error {
-	id, err := pathID(c)
-	if err != nil {
-		return err
-	}
+	id := pathID(c)
 	l, err := s.svc.GetLocation(c.Request().Context(), principal(c), id)
 	if err != nil {
 		return err
@@ -89,25 +77,13 @@ func (s *Server) getLocation(c echo.Context) error {
 	return c.JSON(http.StatusOK, utcLocation(l))
 }
 
-type locationPatchJSON struct {
-	Name       *string `json:"name"`
-	Code       *string `json:"code"`
-	Timezone   *string `json:"timezone"`
-	Address    *string `json:"address"`
-	TaxRatePPM *int64  `json:"tax_rate_ppm"`
-}
-
 func (s *Server) updateLocation(c echo.Context) error {
-	id, err := pathID(c)
-	if err != nil {
-		return err
-	}
-	var in locationPatchJSON
+	id := pathID(c)
+	var in service.LocationPatch
 	if err := decode(c, &in); err != nil {
 		return err
 	}
-	l, err := s.svc.UpdateLocation(c.Request().Context(), principal(c), id, c.Request().Header.Get("If-Match"),
-		service.LocationPatch{Name: in.Name, Code: in.Code, Timezone: in.Timezone, Address: in.Address, TaxRatePPM: in.TaxRatePPM})
+	l, err := s.svc.UpdateLocation(c.Request().Context(), principal(c), id, c.Request().Header.Get("If-Match"), in)
 	if err != nil {
 		return err
 	}
@@ -147,19 +123,12 @@ func (s *Server) listAPIKeys(c echo.Context) error {
 	return writePage(c, ks, p, func(k service.APIKey) uuid.UUID { return k.ID }, toAPIKeyJSON)
 }
 
-type apiKeyCreateJSON struct {
-	Role       service.Role `json:"role"`
-	Name       string       `json:"name"`
-	LocationID *uuid.UUID   `json:"location_id"`
-}
-
 func (s *Server) createAPIKey(c echo.Context) error {
-	var in apiKeyCreateJSON
+	var in service.NewKeyInput
 	if err := decode(c, &in); err != nil {
 		return err
 	}
-	k, err := s.svc.CreateAPIKey(c.Request().Context(), principal(c).OrgID,
-		service.NewKeyInput{Name: in.Name, Role: in.Role, LocationID: in.LocationID})
+	k, err := s.svc.CreateAPIKey(c.Request().Context(), principal(c).OrgID, in)
 	if err != nil {
 		return err
 	}
@@ -170,10 +139,7 @@ func (s *Server) createAPIKey(c echo.Context) error {
 }
 
 func (s *Server) revokeAPIKey(c echo.Context) error {
-	id, err := pathID(c)
-	if err != nil {
-		return err
-	}
+	id := pathID(c)
 	k, err := s.svc.RevokeAPIKey(c.Request().Context(), principal(c), id)
 	if err != nil {
 		return err

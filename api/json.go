@@ -2,7 +2,6 @@ package api
 
 import (
 	"encoding/base64"
-	"fmt"
 	"io"
 	"net/http"
 	"strconv"
@@ -29,14 +28,10 @@ func decode(c echo.Context, v any) error {
 	return strictjson.Unmarshal(body, v)
 }
 
-// pathID parses the {id} path parameter. A malformed id is treated as
-// unknown (404) so that ids never leak which form exists.
-func pathID(c echo.Context) (uuid.UUID, error) {
-	id, err := uuid.Parse(c.Param("id"))
-	if err != nil {
-		return uuid.Nil, fmt.Errorf("no such resource: %w", service.ErrNotFound)
-	}
-	return id, nil
+// pathID is the {id} path parameter, parsed by validateRequest.
+func pathID(c echo.Context) uuid.UUID {
+	id, _ := c.Get("id").(uuid.UUID)
+	return id
 }
 
 // page reads limit and cursor. A cursor is the opaque base64url of the last

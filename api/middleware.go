@@ -3,6 +3,7 @@ package api
 import (
 	"bytes"
 	"errors"
+	"fmt"
 	"io"
 	"log/slog"
 	"maps"
@@ -17,6 +18,7 @@ import (
 	"github.com/getkin/kin-openapi/openapi3"
 	"github.com/getkin/kin-openapi/openapi3filter"
 	"github.com/getkin/kin-openapi/routers"
+	"github.com/google/uuid"
 	"github.com/labstack/echo/v4"
 
 	"wheelbench/api/strictjson"
@@ -143,6 +145,15 @@ func (s *Server) validateRequest(next echo.HandlerFunc) echo.HandlerFunc {
 			if verr := fromSpecError(err); verr != nil {
 				return verr
 			}
+		}
+		if raw, ok := params["id"]; ok {
+			// A malformed id is treated as unknown (404), so that ids
+			// never leak which form exists.
+			id, err := uuid.Parse(raw)
+			if err != nil {
+				return fmt.Errorf("no such resource: %w", service.ErrNotFound)
+			}
+			c.Set("id", id) // pathID
 		}
 		return next(c)
 	}

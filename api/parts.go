@@ -42,10 +42,7 @@ func (s *Server) createPart(c echo.Context) error {
 }
 
 func (s *Server) getPart(c echo.Context) error {
-	id, err := pathID(c)
-	if err != nil {
-		return err
-	}
+	id := pathID(c)
 	p, err := s.svc.GetPart(c.Request().Context(), principal(c), id)
 	if err != nil {
 		return err
@@ -103,10 +100,7 @@ func decodeDimensions(kind service.PartKind, raw jsontext.Value) (any, error) {
 }
 
 func (s *Server) updatePart(c echo.Context) error {
-	id, err := pathID(c)
-	if err != nil {
-		return err
-	}
+	id := pathID(c)
 	var in partPatchJSON
 	if err := decode(c, &in); err != nil {
 		return err
@@ -124,10 +118,7 @@ func (s *Server) updatePart(c echo.Context) error {
 }
 
 func (s *Server) getPartStock(c echo.Context) error {
-	id, err := pathID(c)
-	if err != nil {
-		return err
-	}
+	id := pathID(c)
 	st, err := s.svc.GetPartStock(c.Request().Context(), principal(c), id)
 	if err != nil {
 		return err
@@ -144,10 +135,7 @@ func writeStock(c echo.Context, st service.PartStock) error {
 }
 
 func (s *Server) putPartStock(c echo.Context) error {
-	id, err := pathID(c)
-	if err != nil {
-		return err
-	}
+	id := pathID(c)
 	var in struct {
 		Levels []service.StockLevel `json:"levels"`
 	}

@@ -13,7 +13,6 @@ import (
 	"wheelbench/api/strictjson"
 	"wheelbench/service"
 	"wheelbench/service/field"
-	"wheelbench/service/spoke"
 	"wheelbench/service/tension"
 )
 
@@ -35,22 +34,12 @@ func (s *Server) listTools(c echo.Context) error {
 	return writePage(c, ts, p, func(t service.Tool) uuid.UUID { return t.ID }, utcTool)
 }
 
-type toolCreateJSON struct {
-	LocationID     uuid.UUID `json:"location_id"`
-	Label          string    `json:"label"`
-	Serial         string    `json:"serial"`
-	UnitMM         *float64  `json:"unit_mm"`
-	MeasuredSpanMM *float64  `json:"measured_span_mm"`
-	Notes          string    `json:"notes"`
-}
-
 func (s *Server) createTool(c echo.Context) error {
-	var in toolCreateJSON
+	var in service.ToolInput
 	if err := decode(c, &in); err != nil {
 		return err
 	}
-	t, err := s.svc.CreateTool(c.Request().Context(), principal(c), service.ToolInput{LocationID: in.LocationID,
-		Label: in.Label, Serial: in.Serial, UnitMM: in.UnitMM, MeasuredSpanMM: in.MeasuredSpanMM, Notes: in.Notes})
+	t, err := s.svc.CreateTool(c.Request().Context(), principal(c), in)
 	if err != nil {
 		return err
 	}
@@ -60,10 +49,7 @@ func (s *Server) createTool(c echo.Context) error {
 }
 
 func (s *Server) getTool(c echo.Context) error {
-	id, err := pathID(c)
-	if err != nil {
-		return err
-	}
+	id := pathID(c)
 	t, err := s.svc.GetTool(c.Request().Context(), principal(c), id)
 	if err != nil {
 		return err
@@ -100,10 +86,7 @@ type toolPatchJSON struct {
 }
 
 func (s *Server) updateTool(c echo.Context) error {
-	id, err := pathID(c)
-	if err != nil {
-		return err
-	}
+	id := pathID(c)
 	var in toolPatchJSON
 	if err := decode(c, &in); err != nil {
 		return err
@@ -170,23 +153,13 @@ func toCalibrationJSON(cal service.Calibration) calibrationJSON {
 	return out
 }
 
-type calibrationCreateJSON struct {
-	Source  string           `json:"source"`
-	Columns []tension.Column `json:"columns"`
-	Notes   string           `json:"notes"`
-}
-
 func (s *Server) publishCalibration(c echo.Context) error {
-	toolID, err := pathID(c)
-	if err != nil {
-		return err
-	}
-	var in calibrationCreateJSON
+	toolID := pathID(c)
+	var in service.CalibrationInput
 	if err := decode(c, &in); err != nil {
 		return err
 	}
-	cal, err := s.svc.PublishCalibration(c.Request().Context(), principal(c), toolID,
-		service.CalibrationInput{Source: in.Source, Columns: in.Columns, Notes: in.Notes})
+	cal, err := s.svc.PublishCalibration(c.Request().Context(), principal(c), toolID, in)
 	if err != nil {
 		return err
 	}
@@ -195,10 +168,7 @@ func (s *Server) publishCalibration(c echo.Context) error {
 }
 
 func (s *Server) listCalibrations(c echo.Context) error {
-	toolID, err := pathID(c)
-	if err != nil {
-		return err
-	}
+	toolID := pathID(c)
 	p, err := page(c)
 	if err != nil {
 		return err
@@ -211,10 +181,7 @@ func (s *Server) listCalibrations(c echo.Context) error {
 }
 
 func (s *Server) getCalibration(c echo.Context) error {
-	id, err := pathID(c)
-	if err != nil {
-		return err
-	}
+	id := pathID(c)
 	cal, err := s.svc.GetCalibration(c.Request().Context(), principal(c), id)
 	if err != nil {
 		return err
@@ -223,10 +190,7 @@ func (s *Server) getCalibration(c echo.Context) error {
 }
 
 func (s *Server) getCalibrationChart(c echo.Context) error {
-	id, err := pathID(c)
-	if err != nil {
-		return err
-	}
+	id := pathID(c)
 	var spec *tension.SpokeSpec
 	num := func(name string) (float64, error) {
 		v := c.QueryParam(name)
@@ -277,19 +241,15 @@ func queryPointer(p string) string {
 	return "query:" + name
 }
 
-// inlineCalibrationJSON is a calibration sent with a computation.
-type inlineCalibrationJSON struct {
-	Source  string           `json:"source"`
-	Columns []tension.Column `json:"columns"`
-	Tool    tension.Tool     `json:"tool"`
+// calibrationRefJSON names the calibration a computation uses: a stored
+// version by id, or one sent inline.
+type calibrationRefJSON struct {
+	CalibrationID *uuid.UUID                 `json:"calibration_id"`
+	Calibration   *service.InlineCalibration `json:"calibration"`
 }
 
-func calibrationRef(id *uuid.UUID, inline *inlineCalibrationJSON) service.CalibrationRef {
-	ref := service.CalibrationRef{ID: id}
-	if inline != nil {
-		ref.Inline = &service.InlineCalibration{Source: inline.Source, Columns: inline.Columns, Tool: inline.Tool}
-	}
-	return ref
+func (r calibrationRefJSON) ref() service.CalibrationRef {
+	return service.CalibrationRef{ID: r.CalibrationID, Inline: r.Calibration}
 }
 
 type calibrationUsedJSON struct {
@@ -306,13 +266,8 @@ func toCalibrationUsed(cal *service.Calibration) *calibrationUsedJSON {
 }
 
 type conversionJSON struct {
-	CalibrationID    *uuid.UUID             `json:"calibration_id"`
-	Calibration      *inlineCalibrationJSON `json:"calibration"`
-	Spoke            spoke.Spec             `json:"spoke"`
-	Readings         []float64              `json:"readings"`
-	TargetTensionN   *float64               `json:"target_tension_n"`
-	TargetTensionKgf *float64               `json:"target_tension_kgf"`
-	TargetTensionLbf *float64               `json:"target_tension_lbf"`
+	calibrationRefJSON        `json:",inline"`
+	tension.ConversionRequest `json:",inline"`
 }
 
 func (s *Server) convertTension(c echo.Context) error {
@@ -320,9 +275,7 @@ func (s *Server) convertTension(c echo.Context) error {
 	if err := decode(c, &in); err != nil {
 		return err
 	}
-	out, err := s.svc.ConvertTension(c.Request().Context(), principal(c), calibrationRef(in.CalibrationID, in.Calibration),
-		tension.ConversionRequest{Spoke: in.Spoke, Readings: in.Readings, TargetTensionN: in.TargetTensionN,
-			TargetTensionKgf: in.TargetTensionKgf, TargetTensionLbf: in.TargetTensionLbf})
+	out, err := s.svc.ConvertTension(c.Request().Context(), principal(c), in.ref(), in.ConversionRequest)
 	if err != nil {
 		return err
 	}
@@ -333,18 +286,8 @@ func (s *Server) convertTension(c echo.Context) error {
 }
 
 type auditJSON struct {
-	CalibrationID           *uuid.UUID             `json:"calibration_id"`
-	Calibration             *inlineCalibrationJSON `json:"calibration"`
-	Spoke                   spoke.Spec             `json:"spoke"`
-	SpokeLeft               *spoke.Spec            `json:"spoke_left"`
-	SpokeRight              *spoke.Spec            `json:"spoke_right"`
-	Readings                []tension.AuditReading `json:"readings"`
-	TargetTensionN          *float64               `json:"target_tension_n"`
-	TargetTensionKgf        *float64               `json:"target_tension_kgf"`
-	TargetTensionLbf        *float64               `json:"target_tension_lbf"`
-	TargetSide              string                 `json:"target_side"`
-	TolerancePct            *float64               `json:"tolerance_pct"`
-	GeometricLeftRightRatio *float64               `json:"geometric_left_right_ratio"`
+	calibrationRefJSON   `json:",inline"`
+	tension.AuditRequest `json:",inline"`
 }
 
 func (s *Server) auditTension(c echo.Context) error {
@@ -352,10 +295,7 @@ func (s *Server) auditTension(c echo.Context) error {
 	if err := decode(c, &in); err != nil {
 		return err
 	}
-	out, err := s.svc.AuditTension(c.Request().Context(), principal(c), calibrationRef(in.CalibrationID, in.Calibration),
-		tension.AuditRequest{Spoke: in.Spoke, SpokeLeft: in.SpokeLeft, SpokeRight: in.SpokeRight, Readings: in.Readings,
-			TargetTensionN: in.TargetTensionN, TargetTensionKgf: in.TargetTensionKgf, TargetTensionLbf: in.TargetTensionLbf,
-			TargetSide: in.TargetSide, TolerancePct: in.TolerancePct, GeometricLeftRightRatio: in.GeometricLeftRightRatio})
+	out, err := s.svc.AuditTension(c.Request().Context(), principal(c), in.ref(), in.AuditRequest)
 	if err != nil {
 		return err
 	}

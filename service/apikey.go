@@ -27,9 +27,9 @@ var prefixEncoding = base32.StdEncoding.WithPadding(base32.NoPadding)
 
 // NewKeyInput is what creating a key takes.
 type NewKeyInput struct {
-	Name       string
-	Role       Role
-	LocationID *uuid.UUID
+	Name       string     `json:"name"`
+	Role       Role       `json:"role"`
+	LocationID *uuid.UUID `json:"location_id"`
 }
 
 // CreatedKey is a new key with its secret, shown once.

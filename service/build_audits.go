@@ -32,10 +32,10 @@ type BuildTensionAudit struct {
 
 // BuildAuditInput records an audit of a build.
 type BuildAuditInput struct {
-	CalibrationID uuid.UUID
-	Readings      []tension.AuditReading
-	TolerancePct  *float64
-	Notes         string
+	CalibrationID uuid.UUID              `json:"calibration_id"`
+	Readings      []tension.AuditReading `json:"readings"`
+	TolerancePct  *float64               `json:"tolerance_pct"`
+	Notes         string                 `json:"notes"`
 }
 
 // RecordBuildAudit converts the readings with a stored calibration version,

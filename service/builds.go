@@ -147,15 +147,15 @@ type BuildSpec struct {
 
 // BuildInput creates a build.
 type BuildInput struct {
-	Spec        BuildSpec
-	ExternalRef string
-	LocationID  uuid.UUID
+	Spec        BuildSpec `json:"spec"`
+	ExternalRef string    `json:"external_ref"`
+	LocationID  uuid.UUID `json:"location_id"`
 }
 
 // BuildPatch changes a build's status or notes.
 type BuildPatch struct {
-	Status *BuildStatus
-	Notes  *string
+	Status *BuildStatus `json:"status"`
+	Notes  *string      `json:"notes"`
 }
 
 // BuildFilter narrows a build list.

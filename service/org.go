@@ -77,12 +77,12 @@ func (s *Service) WhoAmI(ctx context.Context, p Principal) (Me, error) {
 
 // LocationInput is what creating a location takes.
 type LocationInput struct {
-	ID         uuid.UUID // optional: zero means a new id
-	Name       string
-	Code       string
-	Timezone   string
-	Address    string
-	TaxRatePPM int64
+	ID         uuid.UUID `json:"-"` // optional: zero means a new id
+	Name       string    `json:"name"`
+	Code       string    `json:"code"`
+	Timezone   string    `json:"timezone"`
+	Address    string    `json:"address"`
+	TaxRatePPM int64     `json:"tax_rate_ppm"`
 }
 
 func validateLocationFields(name, code, tz, address *string, taxPPM *int64) error {

@@ -21,9 +21,9 @@ type CalibrationRef struct {
 
 // InlineCalibration is a calibration sent with a computation.
 type InlineCalibration struct {
-	Source  string
-	Columns []tension.Column
-	Tool    tension.Tool
+	Source  string           `json:"source"`
+	Columns []tension.Column `json:"columns"`
+	Tool    tension.Tool     `json:"tool"`
 }
 
 // modelFor resolves ref to a fitted model; cal is the stored version used,

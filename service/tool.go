@@ -43,13 +43,13 @@ func (t Tool) Facts() tension.Tool {
 
 // ToolInput is what creating a tool takes. UnitMM nil means DefaultUnitMM.
 type ToolInput struct {
-	ID             uuid.UUID // optional: zero means a new id
-	LocationID     uuid.UUID
-	Label          string
-	Serial         string
-	UnitMM         *float64
-	MeasuredSpanMM *float64
-	Notes          string
+	ID             uuid.UUID `json:"-"` // optional: zero means a new id
+	LocationID     uuid.UUID `json:"location_id"`
+	Label          string    `json:"label"`
+	Serial         string    `json:"serial"`
+	UnitMM         *float64  `json:"unit_mm"`
+	MeasuredSpanMM *float64  `json:"measured_span_mm"`
+	Notes          string    `json:"notes"`
 }
 
 // ToolPatch holds the fields a PATCH may change; nil leaves a field.
@@ -192,10 +192,10 @@ type Calibration struct {
 
 // CalibrationInput is what publishing a calibration takes.
 type CalibrationInput struct {
-	ID      uuid.UUID // optional: zero means a new id
-	Source  string    // maker_table (default) or known_tension
-	Notes   string
-	Columns []tension.Column
+	ID      uuid.UUID        `json:"-"`      // optional: zero means a new id
+	Source  string           `json:"source"` // maker_table (default) or known_tension
+	Notes   string           `json:"notes"`
+	Columns []tension.Column `json:"columns"`
 }
 
 // PublishCalibration validates the columns, fits the tool model once with

@@ -47,20 +47,20 @@ const DisabledGone = "the receiver answered 410 Gone"
 
 // WebhookEndpointInput creates an endpoint. Active nil means true.
 type WebhookEndpointInput struct {
-	URL         string
-	Events      []string
-	Active      *bool
-	Description string
+	URL         string   `json:"url"`
+	Events      []string `json:"events"`
+	Active      *bool    `json:"active"`
+	Description string   `json:"description"`
 }
 
 // WebhookEndpointPatch changes an endpoint; nil leaves a field. Setting
 // Active to false cancels the endpoint's pending deliveries; setting it to
 // true clears DisabledReason (only events after that are delivered).
 type WebhookEndpointPatch struct {
-	URL         *string
-	Events      []string // nil leaves the list
-	Active      *bool
-	Description *string
+	URL         *string  `json:"url"`
+	Events      []string `json:"events"` // nil leaves the list
+	Active      *bool    `json:"active"`
+	Description *string  `json:"description"`
 }
 
 // WebhookSettings are the process-wide webhook choices of a Service.

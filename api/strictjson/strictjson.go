@@ -69,7 +69,12 @@ func Unmarshal(b []byte, v any) error {
 	if err := json.Unmarshal(b, v, options); err != nil {
 		return translate(b, err)
 	}
-	return checkNUL(b)
+	// The escape \u0000 is the only way to write U+0000 (a raw NUL byte is
+	// not valid JSON): a body without that text holds none.
+	if bytes.Contains(b, []byte(`\u0000`)) {
+		return Check(b)
+	}
+	return nil
 }
 
 // Check reads b as one JSON value under the policy's rules that need no Go
@@ -108,25 +113,6 @@ const (
 	nulMessage      = "must not contain the character U+0000"
 	outOfRangeFloat = "must be a number within the range of a double (about ±1.8e308)"
 )
-
-// checkNUL finds a U+0000 in any string or member name of b, which is
-// valid JSON. The escape \u0000 is the only way to write one (a raw NUL
-// byte is not valid JSON), so a body without that text is passed at once.
-func checkNUL(b []byte) error {
-	if !bytes.Contains(b, []byte(`\u0000`)) {
-		return nil
-	}
-	dec := jsontext.NewDecoder(bytes.NewReader(b))
-	for {
-		tok, err := dec.ReadToken()
-		if err != nil {
-			return nil // already decoded once: only the end is left
-		}
-		if tok.Kind() == '"' && strings.IndexByte(tok.String(), 0) >= 0 {
-			return &field.Error{Pointer: string(dec.StackPointer()), Message: nulMessage}
-		}
-	}
-}
 
 // translate turns the JSON library's errors about b into *field.Error. An
 // error that is not the library's (one a type's own decoder returned) keeps

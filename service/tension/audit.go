@@ -29,18 +29,18 @@ const defaultTolerancePct = 10
 // sides and a warning says that a dished wheel needs the ratio. Without a
 // target each side is judged against its own mean.
 type AuditRequest struct {
-	Spoke            spoke.Spec
-	SpokeLeft        *spoke.Spec
-	SpokeRight       *spoke.Spec
-	Readings         []AuditReading
-	TargetTensionN   *float64
-	TargetTensionKgf *float64
-	TargetTensionLbf *float64
-	TargetSide       string
+	Spoke            spoke.Spec     `json:"spoke"`
+	SpokeLeft        *spoke.Spec    `json:"spoke_left"`
+	SpokeRight       *spoke.Spec    `json:"spoke_right"`
+	Readings         []AuditReading `json:"readings"`
+	TargetTensionN   *float64       `json:"target_tension_n"`
+	TargetTensionKgf *float64       `json:"target_tension_kgf"`
+	TargetTensionLbf *float64       `json:"target_tension_lbf"`
+	TargetSide       string         `json:"target_side"`
 	// TolerancePct is the allowed deviation in percent (default 10).
-	TolerancePct *float64
+	TolerancePct *float64 `json:"tolerance_pct"`
 	// GeometricLeftRightRatio is T_left/T_right from the wheel's geometry.
-	GeometricLeftRightRatio *float64
+	GeometricLeftRightRatio *float64 `json:"geometric_left_right_ratio"`
 }
 
 // AuditReading is one spoke's dial reading.

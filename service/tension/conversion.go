@@ -13,13 +13,14 @@ const maxReadings = 1000
 // ConversionRequest is what one conversion against a fitted model asks: the
 // spoke (the same description as everywhere; its measured section is
 // converted), and either readings or exactly one target tension in N, kgf
-// or lbf. The calibration it converts with is the caller's to find.
+// or lbf. The calibration it converts with is the caller's to find (the
+// request body names it beside these members).
 type ConversionRequest struct {
-	Spoke            spoke.Spec
-	Readings         []float64
-	TargetTensionN   *float64
-	TargetTensionKgf *float64
-	TargetTensionLbf *float64
+	Spoke            spoke.Spec `json:"spoke"`
+	Readings         []float64  `json:"readings"`
+	TargetTensionN   *float64   `json:"target_tension_n"`
+	TargetTensionKgf *float64   `json:"target_tension_kgf"`
+	TargetTensionLbf *float64   `json:"target_tension_lbf"`
 }
 
 // ConversionResponse carries results for readings, or the target.

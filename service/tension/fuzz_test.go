@@ -5,8 +5,6 @@ import (
 	"math"
 	"reflect"
 	"testing"
-
-	"wheelbench/service/spoke"
 )
 
 // FuzzConvert decodes a conversion request with an inline calibration,
@@ -17,12 +15,8 @@ func FuzzConvert(f *testing.F) {
 	f.Fuzz(func(t *testing.T, data []byte) {
 		// The request body of a conversion with an inline calibration.
 		var body struct {
-			Calibration      *Calibration `json:"calibration"`
-			Spoke            spoke.Spec   `json:"spoke"`
-			Readings         []float64    `json:"readings"`
-			TargetTensionN   *float64     `json:"target_tension_n"`
-			TargetTensionKgf *float64     `json:"target_tension_kgf"`
-			TargetTensionLbf *float64     `json:"target_tension_lbf"`
+			Calibration *Calibration `json:"calibration"`
+			ConversionRequest
 		}
 		if json.Unmarshal(data, &body) != nil || body.Calibration == nil {
 			return
@@ -40,8 +34,7 @@ func FuzzConvert(f *testing.F) {
 			return
 		}
 		checkFinite(t, "model", reflect.ValueOf(m))
-		out, err := m.ConvertRequest(ConversionRequest{Spoke: body.Spoke, Readings: body.Readings,
-			TargetTensionN: body.TargetTensionN, TargetTensionKgf: body.TargetTensionKgf, TargetTensionLbf: body.TargetTensionLbf})
+		out, err := m.ConvertRequest(body.ConversionRequest)
 		if err != nil {
 			return
 		}
