@@ -41,7 +41,7 @@ func scanBuild(row pgx.CollectableRow) (service.Build, error) {
 // CreateBuild inserts b and its build.created change. b's location must be
 // one of its organisation's: the service checks that first, to answer with
 // the field at fault, and the foreign key (org_id, location_id) →
-// locations holds it in the database (migration 00010).
+// locations holds it in the database (migration 00004).
 func (s *Store) CreateBuild(ctx context.Context, b service.Build) (err error) {
 	defer wrap(&err, "create build")
 	spec, err := json.Marshal(b.Spec)
