@@ -24,10 +24,9 @@ func processCPU(b *testing.B) time.Duration {
 	return time.Duration(ru.Utime.Nano() + ru.Stime.Nano())
 }
 
-// TestCreateBuildResponseIsTheBuild: POST /v1/builds writes the snapshot
-// from bytes the service marshalled once; the body must be exactly what
-// encoding/json makes of the build it describes (decoded from that body and
-// encoded again as the handler once did, with echo's trailing newline, and
+// TestCreateBuildResponseIsTheBuild: the body POST /v1/builds answers must
+// be exactly what encoding/json makes of the build it describes (decoded
+// from that body and encoded again, with echo's trailing newline, and
 // indented for ?pretty), for an inline spec with whitespace and a catalog
 // spec at a location whose tensiometer is calibrated (stock from the
 // location, target readings).

@@ -7,7 +7,7 @@ import (
 	"github.com/labstack/echo/v4"
 
 	"wheelbench/api/sheet"
-	"wheelbench/service"
+	"wheelbench/service/field"
 )
 
 // sheetCSP holds a bench sheet to itself: inline CSS and SVG, no script,
@@ -17,14 +17,12 @@ const sheetCSP = "default-src 'none'; style-src 'unsafe-inline'; img-src data:; 
 // getBuildSheet answers a build's bench sheet as one self-contained HTML
 // page, laid out for ?paper= or the location's default paper.
 func (s *Server) getBuildSheet(c echo.Context) error {
-	id, err := pathID(c)
-	if err != nil {
-		return err
-	}
+	id := pathID(c)
 	var paper sheet.Paper
 	if v, ok := c.QueryParams()["paper"]; ok && len(v) > 0 {
+		var err error
 		if paper, err = sheet.ParsePaper(v[0]); err != nil {
-			return service.Invalid("query:paper", "%s", err.Error())
+			return field.Invalid("query:paper", "%s", err.Error())
 		}
 	}
 	bs, err := s.svc.BuildSheet(c.Request().Context(), principal(c), id)
@@ -47,10 +45,7 @@ func (s *Server) getBuildSheet(c echo.Context) error {
 // getBuildLacing answers a build's lacing diagram as SVG, drawn from the
 // lacing plan its snapshot keeps.
 func (s *Server) getBuildLacing(c echo.Context) error {
-	id, err := pathID(c)
-	if err != nil {
-		return err
-	}
+	id := pathID(c)
 	b, err := s.svc.GetBuild(c.Request().Context(), principal(c), id)
 	if err != nil {
 		return err

@@ -1,7 +1,6 @@
 package api
 
 import (
-	"encoding/json"
 	"net/http"
 	"time"
 
@@ -9,84 +8,26 @@ import (
 	"github.com/labstack/echo/v4"
 
 	"wheelbench/service"
+	"wheelbench/service/field"
 	"wheelbench/service/quote"
 )
 
-type buildCreateJSON struct {
-	Spec        json.RawMessage `json:"spec"`
-	ExternalRef string          `json:"external_ref"`
-	LocationID  uuid.UUID       `json:"location_id"`
-}
-
 func (s *Server) createBuild(c echo.Context) error {
-	var in buildCreateJSON
+	var in service.BuildInput
 	if err := decode(c, &in); err != nil {
 		return err
 	}
-	b, err := s.svc.CreateBuild(c.Request().Context(), principal(c), service.BuildInput(in))
+	b, err := s.svc.CreateBuild(c.Request().Context(), principal(c), in)
 	if err != nil {
 		return err
 	}
 	c.Response().Header().Set("ETag", b.ETag())
 	c.Response().Header().Set("Location", "/v1/builds/"+b.ID.String())
-	if b.SnapshotJSON == nil {
-		return c.JSON(http.StatusCreated, b)
-	}
-	head := createdBuildHead{ID: b.ID, LocationID: b.LocationID, ExternalRef: b.ExternalRef, Status: b.Status, Spec: b.Spec}
-	tail := createdBuildTail{Notes: b.Notes, CreatedAt: b.CreatedAt, UpdatedAt: b.UpdatedAt}
-	if _, pretty := c.QueryParams()["pretty"]; pretty || c.Echo().Debug {
-		return c.JSON(http.StatusCreated, createdBuildJSON{head, b.SnapshotJSON, tail})
-	}
-	// What c.JSON would write for createdBuildJSON, without compacting the
-	// snapshot's bytes again (json.Marshal's output is compact already).
-	h, err := json.Marshal(head)
-	if err != nil {
-		return err
-	}
-	t, err := json.Marshal(tail)
-	if err != nil {
-		return err
-	}
-	out := make([]byte, 0, len(h)+len(b.SnapshotJSON)+len(t)+16)
-	out = append(out, h[:len(h)-1]...)
-	out = append(out, `,"snapshot":`...)
-	out = append(out, b.SnapshotJSON...)
-	out = append(out, ',')
-	out = append(out, t[1:]...)
-	out = append(out, '\n')
-	return c.Blob(http.StatusCreated, echo.MIMEApplicationJSON, out)
-}
-
-// createdBuildJSON is service.Build as encoding/json writes it — the same
-// members in the same order — with the snapshot as the bytes the service
-// already marshalled (and stored) instead of the struct encoded again.
-type createdBuildJSON struct {
-	createdBuildHead
-	Snapshot json.RawMessage `json:"snapshot"`
-	createdBuildTail
-}
-
-// createdBuildHead and createdBuildTail are a build's members before and
-// after the snapshot.
-type createdBuildHead struct {
-	ID          uuid.UUID           `json:"id"`
-	LocationID  uuid.UUID           `json:"location_id"`
-	ExternalRef string              `json:"external_ref"`
-	Status      service.BuildStatus `json:"status"`
-	Spec        json.RawMessage     `json:"spec"`
-}
-
-type createdBuildTail struct {
-	Notes     string    `json:"notes"`
-	CreatedAt time.Time `json:"created_at"`
-	UpdatedAt time.Time `json:"updated_at"`
+	return c.JSON(http.StatusCreated, b)
 }
 
 func (s *Server) getBuild(c echo.Context) error {
-	id, err := pathID(c)
-	if err != nil {
-		return err
-	}
+	id := pathID(c)
 	b, err := s.svc.GetBuild(c.Request().Context(), principal(c), id)
 	if err != nil {
 		return err
@@ -104,7 +45,7 @@ func (s *Server) listBuilds(c echo.Context) error {
 	if v := c.QueryParam("location_id"); v != "" {
 		id, err := uuid.Parse(v)
 		if err != nil {
-			return service.Invalid("query:location_id", "location_id must be a UUID")
+			return field.Invalid("query:location_id", "location_id must be a UUID")
 		}
 		f.LocationID = &id
 	}
@@ -114,7 +55,7 @@ func (s *Server) listBuilds(c echo.Context) error {
 	if v := c.QueryParam("updated_after"); v != "" {
 		t, err := time.Parse(time.RFC3339Nano, v)
 		if err != nil {
-			return service.Invalid("query:updated_after", "updated_after must be an RFC 3339 time such as 2026-12-01T10:00:00Z")
+			return field.Invalid("query:updated_after", "updated_after must be an RFC 3339 time such as 2026-12-01T10:00:00Z")
 		}
 		f.UpdatedAfter = &t
 	}
@@ -122,31 +63,16 @@ func (s *Server) listBuilds(c echo.Context) error {
 	if err != nil {
 		return err
 	}
-	out := listJSON[service.Build]{Items: bs}
-	if out.Items == nil {
-		out.Items = []service.Build{}
-	}
-	if len(bs) > 0 {
-		out.NextCursor = nextCursor(len(bs), pg.Limit, bs[len(bs)-1].ID)
-	}
-	return c.JSON(http.StatusOK, out)
-}
-
-type buildPatchJSON struct {
-	Status *service.BuildStatus `json:"status"`
-	Notes  *string              `json:"notes"`
+	return writePage(c, bs, pg, func(b service.Build) uuid.UUID { return b.ID }, as)
 }
 
 func (s *Server) updateBuild(c echo.Context) error {
-	id, err := pathID(c)
-	if err != nil {
-		return err
-	}
-	var in buildPatchJSON
+	id := pathID(c)
+	var in service.BuildPatch
 	if err := decode(c, &in); err != nil {
 		return err
 	}
-	b, err := s.svc.UpdateBuild(c.Request().Context(), principal(c), id, c.Request().Header.Get("If-Match"), service.BuildPatch(in))
+	b, err := s.svc.UpdateBuild(c.Request().Context(), principal(c), id, c.Request().Header.Get("If-Match"), in)
 	if err != nil {
 		return err
 	}
@@ -192,10 +118,7 @@ func (s *Server) createQuote(c echo.Context) error {
 }
 
 func (s *Server) getQuote(c echo.Context) error {
-	id, err := pathID(c)
-	if err != nil {
-		return err
-	}
+	id := pathID(c)
 	q, err := s.svc.GetQuote(c.Request().Context(), principal(c), id)
 	if err != nil {
 		return err
@@ -204,10 +127,7 @@ func (s *Server) getQuote(c echo.Context) error {
 }
 
 func (s *Server) acceptQuote(c echo.Context) error {
-	id, err := pathID(c)
-	if err != nil {
-		return err
-	}
+	id := pathID(c)
 	q, err := s.svc.AcceptQuote(c.Request().Context(), principal(c), id)
 	if err != nil {
 		return err
@@ -215,23 +135,13 @@ func (s *Server) acceptQuote(c echo.Context) error {
 	return c.JSON(http.StatusOK, q)
 }
 
-type buildAuditJSON struct {
-	CalibrationID uuid.UUID              `json:"calibration_id"`
-	Readings      []service.AuditReading `json:"readings"`
-	TolerancePct  *float64               `json:"tolerance_pct"`
-	Notes         string                 `json:"notes"`
-}
-
 func (s *Server) createBuildAudit(c echo.Context) error {
-	id, err := pathID(c)
-	if err != nil {
-		return err
-	}
-	var in buildAuditJSON
+	id := pathID(c)
+	var in service.BuildAuditInput
 	if err := decode(c, &in); err != nil {
 		return err
 	}
-	a, err := s.svc.RecordBuildAudit(c.Request().Context(), principal(c), id, service.BuildAuditInput(in))
+	a, err := s.svc.RecordBuildAudit(c.Request().Context(), principal(c), id, in)
 	if err != nil {
 		return err
 	}
@@ -239,24 +149,14 @@ func (s *Server) createBuildAudit(c echo.Context) error {
 }
 
 func (s *Server) listBuildAudits(c echo.Context) error {
-	id, err := pathID(c)
-	if err != nil {
-		return err
-	}
+	id := pathID(c)
 	pg, err := page(c)
 	if err != nil {
 		return err
 	}
-	as, err := s.svc.ListBuildAudits(c.Request().Context(), principal(c), id, pg)
+	audits, err := s.svc.ListBuildAudits(c.Request().Context(), principal(c), id, pg)
 	if err != nil {
 		return err
 	}
-	out := listJSON[service.BuildTensionAudit]{Items: as}
-	if out.Items == nil {
-		out.Items = []service.BuildTensionAudit{}
-	}
-	if len(as) > 0 {
-		out.NextCursor = nextCursor(len(as), pg.Limit, as[len(as)-1].ID)
-	}
-	return c.JSON(http.StatusOK, out)
+	return writePage(c, audits, pg, func(a service.BuildTensionAudit) uuid.UUID { return a.ID }, as)
 }

@@ -381,10 +381,10 @@ func TestBuildBadBodies(t *testing.T) {
 
 // TestBuildRefusesAnotherOrganisationsLocation: a build naming another
 // organisation's location is a 422 on /location_id and writes nothing.
-// The database has no foreign key from builds to locations (migration
-// 00009), so the service's organisation-scoped check is what refuses it —
-// also when the location is in the service's cache for its own
-// organisation, as it is here after A's build.
+// The service's organisation-scoped check refuses it before the insert
+// (the database's foreign key would too, as a conflict) — also when the
+// location is in the service's cache for its own organisation, as it is
+// here after A's build.
 func TestBuildRefusesAnotherOrganisationsLocation(t *testing.T) {
 	e := newEnv(t)
 	var locA struct{ ID uuid.UUID }

@@ -11,6 +11,7 @@ import (
 	"github.com/labstack/echo/v4"
 
 	"wheelbench/service"
+	"wheelbench/service/field"
 )
 
 type changeJSON struct {
@@ -31,7 +32,7 @@ func (s *Server) listChanges(c echo.Context) error {
 	if v := c.QueryParam("limit"); v != "" {
 		n, err := strconv.Atoi(v)
 		if err != nil || n < 1 || n > 1000 {
-			return service.Invalid("query:limit", "limit must be an integer from 1 to 1000")
+			return field.Invalid("query:limit", "limit must be an integer from 1 to 1000")
 		}
 		q.Limit = n
 	}

@@ -11,17 +11,19 @@ import (
 	"github.com/jackc/pgx/v5/pgxpool"
 
 	"wheelbench/service"
+	"wheelbench/service/background"
 	"wheelbench/service/webhook"
 	"wheelbench/store"
 	"wheelbench/store/storetest"
 )
 
-// replicas returns n services on one database, each with a pool of its
-// own, as n serve processes would have; the first is the env's.
-func replicas(t *testing.T, n int) (*env, []*service.Service) {
+// replicas returns the stores of n replicas on one database, each with a
+// pool of its own, as n serve processes would have; the first is the
+// env's, whose service takes loopback webhook URLs.
+func replicas(t *testing.T, n int) (*env, []*store.Store) {
 	t.Helper()
 	url := storetest.URL(t)
-	var svcs []*service.Service
+	var sts []*store.Store
 	var e *env
 	for i := range n {
 		pool, err := pgxpool.New(context.Background(), url)
@@ -31,20 +33,18 @@ func replicas(t *testing.T, n int) (*env, []*service.Service) {
 		t.Cleanup(pool.Close)
 		if i == 0 {
 			e = newEnvPool(t, pool)
-			svcs = append(svcs, e.svc)
+			sts = append(sts, e.st)
 			continue
 		}
-		svcs = append(svcs, service.New(store.New(pool), nil))
+		sts = append(sts, store.New(pool))
 	}
-	for _, s := range svcs {
-		s.ConfigureWebhooks(service.WebhookSettings{AllowPrivate: true})
-	}
-	return e, svcs
+	e.svc.ConfigureWebhooks(service.WebhookSettings{AllowPrivate: true})
+	return e, sts
 }
 
-func dispatcher(t *testing.T, s *service.Service, cfg service.DispatcherConfig) *service.Dispatcher {
+func dispatcher(t *testing.T, st *store.Store, cfg background.Config) *background.Dispatcher {
 	t.Helper()
-	d, err := s.NewDispatcher(cfg)
+	d, err := background.NewDispatcher(st, nil, cfg)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -78,7 +78,7 @@ func TestThreeDispatchersOneReceiver(t *testing.T) {
 	counts := make([]*outcomes, len(svcs))
 	for i, s := range svcs {
 		counts[i] = &outcomes{}
-		d := dispatcher(t, s, service.DispatcherConfig{Sender: sender, Poll: 10 * time.Millisecond, Batch: 5, Workers: 2,
+		d := dispatcher(t, s, background.Config{Sender: sender, Poll: 10 * time.Millisecond, Batch: 5, Workers: 2,
 			Lease: 30 * time.Second, Retry: fastRetry, Observer: counts[i]})
 		wg.Add(1)
 		go func() { defer wg.Done(); d.Run(ctx) }()
@@ -177,7 +177,7 @@ func TestThreeDispatchersOneReceiver(t *testing.T) {
 	worked := 0
 	var split []int
 	for _, c := range counts {
-		n := c.get(service.OutcomeDelivered) + c.get(service.OutcomeRetry)
+		n := c.get(background.OutcomeDelivered) + c.get(background.OutcomeRetry)
 		split = append(split, n)
 		if n > 0 {
 			worked++
@@ -199,7 +199,7 @@ func TestGoneDisablesAndStops(t *testing.T) {
 	id, _ := e.createEndpoint(rv, "location.*")
 	e.createLocations(3, "bench")
 	obs := &outcomes{}
-	d := dispatcher(t, svcs[0], service.DispatcherConfig{Sender: newLoopbackSender(t, rv), Batch: 1, Retry: fastRetry, Observer: obs})
+	d := dispatcher(t, svcs[0], background.Config{Sender: newLoopbackSender(t, rv), Batch: 1, Retry: fastRetry, Observer: obs})
 	ctx := context.Background()
 	for range 5 {
 		if _, err := d.RunOnce(ctx); err != nil {
@@ -226,7 +226,7 @@ func TestGoneDisablesAndStops(t *testing.T) {
 	if c := e.deliveryCounts(); c["failed"] != 1 || c["cancelled"] != 2 || c["pending"] != 0 || len(c) != 2 {
 		t.Errorf("outbox %v, want 1 failed (the 410) and 2 cancelled", c)
 	}
-	if obs.get(service.OutcomeGone) != 1 {
+	if obs.get(background.OutcomeGone) != 1 {
 		t.Errorf("outcomes %v", obs.n)
 	}
 	rv.checkSignatures()
@@ -259,7 +259,7 @@ func TestInactiveAndDeletedGetNothing(t *testing.T) {
 	e.want(e.do("DELETE", "/v1/webhook-endpoints/"+deletedID, admin, nil), 204)
 	e.createLocations(2, "later")
 
-	d := dispatcher(t, svcs[0], service.DispatcherConfig{Sender: newLoopbackSender(t, live, inactive, switched, deleted), Retry: fastRetry})
+	d := dispatcher(t, svcs[0], background.Config{Sender: newLoopbackSender(t, live, inactive, switched, deleted), Retry: fastRetry})
 	for range 5 {
 		if _, err := d.RunOnce(context.Background()); err != nil {
 			t.Fatal(err)
@@ -293,7 +293,7 @@ func TestRetriesGiveUpAfterTheWindow(t *testing.T) {
 		t.Fatalf("schedule has %d steps, want 3", got)
 	}
 	obs := &outcomes{}
-	d := dispatcher(t, svcs[0], service.DispatcherConfig{Sender: newLoopbackSender(t, rv), Retry: retry, Observer: obs})
+	d := dispatcher(t, svcs[0], background.Config{Sender: newLoopbackSender(t, rv), Retry: retry, Observer: obs})
 	until(t, 10*time.Second, "the delivery to fail", func() bool {
 		if _, err := d.RunOnce(context.Background()); err != nil {
 			t.Fatal(err)
@@ -307,7 +307,7 @@ func TestRetriesGiveUpAfterTheWindow(t *testing.T) {
 	if n := len(rv.snapshot()); n != 4 || len(ids) != 1 {
 		t.Errorf("%d requests under %d webhook-ids, want 4 under 1", n, len(ids))
 	}
-	if obs.get(service.OutcomeRetry) != 3 || obs.get(service.OutcomeFailed) != 1 {
+	if obs.get(background.OutcomeRetry) != 3 || obs.get(background.OutcomeFailed) != 1 {
 		t.Errorf("outcomes %v, want 3 retried and 1 failed", obs.n)
 	}
 	var status int
@@ -328,7 +328,7 @@ func TestShutdownFinishesSendsAndReleasesTheRest(t *testing.T) {
 	rv.setHold(hold)
 	e.createEndpoint(rv, "*")
 	e.createLocations(3, "bench")
-	d := dispatcher(t, svcs[0], service.DispatcherConfig{Sender: newLoopbackSender(t, rv), Batch: 3, Workers: 1, Retry: fastRetry})
+	d := dispatcher(t, svcs[0], background.Config{Sender: newLoopbackSender(t, rv), Batch: 3, Workers: 1, Retry: fastRetry})
 	ctx, cancel := context.WithCancel(context.Background())
 	done := make(chan struct{})
 	go func() { defer close(done); d.Run(ctx) }()
@@ -360,7 +360,7 @@ func TestShutdownFinishesSendsAndReleasesTheRest(t *testing.T) {
 	}
 	// Released means due now: another dispatcher takes them at once.
 	rv.setHold(nil)
-	d2 := dispatcher(t, svcs[0], service.DispatcherConfig{Sender: newLoopbackSender(t, rv), Retry: fastRetry})
+	d2 := dispatcher(t, svcs[0], background.Config{Sender: newLoopbackSender(t, rv), Retry: fastRetry})
 	if n, err := d2.RunOnce(context.Background()); err != nil || n != 2 {
 		t.Errorf("next round claimed %d (%v), want 2", n, err)
 	}
@@ -379,7 +379,7 @@ func TestLeaseExpiryRedelivers(t *testing.T) {
 	if err != nil || len(lost) != 1 {
 		t.Fatal(lost, err)
 	}
-	d := dispatcher(t, svcs[1], service.DispatcherConfig{Sender: newLoopbackSender(t, rv), Retry: fastRetry})
+	d := dispatcher(t, svcs[1], background.Config{Sender: newLoopbackSender(t, rv), Retry: fastRetry})
 	if n, err := d.RunOnce(context.Background()); err != nil || n != 0 {
 		t.Fatalf("claimed %d (%v) while the lease held, want 0", n, err)
 	}
@@ -434,7 +434,7 @@ func TestShopEventsFollowTheFeed(t *testing.T) {
 	if !all["build.created"] || !all["quote.accepted"] || !all["quote.created"] || !all["part.created"] {
 		t.Fatalf("the feed lacks the types this test is about: %v", all)
 	}
-	d := dispatcher(t, svcs[0], service.DispatcherConfig{Sender: newLoopbackSender(t, rv), Retry: fastRetry})
+	d := dispatcher(t, svcs[0], background.Config{Sender: newLoopbackSender(t, rv), Retry: fastRetry})
 	if _, err := d.RunOnce(context.Background()); err != nil {
 		t.Fatal(err)
 	}

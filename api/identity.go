@@ -10,20 +10,10 @@ import (
 	"wheelbench/service"
 )
 
-type locationJSON struct {
-	ID         uuid.UUID `json:"id"`
-	Name       string    `json:"name"`
-	Code       string    `json:"code"`
-	Timezone   string    `json:"timezone"`
-	Address    string    `json:"address"`
-	TaxRatePPM int64     `json:"tax_rate_ppm"`
-	CreatedAt  time.Time `json:"created_at"`
-	UpdatedAt  time.Time `json:"updated_at"`
-}
-
-func toLocationJSON(l service.Location) locationJSON {
-	return locationJSON{ID: l.ID, Name: l.Name, Code: l.Code, Timezone: l.Timezone, Address: l.Address, TaxRatePPM: l.TaxRatePPM,
-		CreatedAt: l.CreatedAt.UTC(), UpdatedAt: l.UpdatedAt.UTC()}
+// utcLocation is a location as answered: its times in UTC.
+func utcLocation(l service.Location) service.Location {
+	l.CreatedAt, l.UpdatedAt = l.CreatedAt.UTC(), l.UpdatedAt.UTC()
+	return l
 }
 
 type meJSON struct {
@@ -31,9 +21,9 @@ type meJSON struct {
 		ID   uuid.UUID `json:"id"`
 		Name string    `json:"name"`
 	} `json:"organisation"`
-	Location *locationJSON `json:"location,omitempty"`
-	Role     service.Role  `json:"role"`
-	KeyID    uuid.UUID     `json:"key_id"`
+	Location *service.Location `json:"location,omitempty"`
+	Role     service.Role      `json:"role"`
+	KeyID    uuid.UUID         `json:"key_id"`
 }
 
 func (s *Server) getMe(c echo.Context) error {
@@ -44,16 +34,11 @@ func (s *Server) getMe(c echo.Context) error {
 	var out meJSON
 	out.Organisation.ID, out.Organisation.Name = me.Organisation.ID, me.Organisation.Name
 	if me.Location != nil {
-		l := toLocationJSON(*me.Location)
+		l := utcLocation(*me.Location)
 		out.Location = &l
 	}
 	out.Role, out.KeyID = me.Principal.Role, me.Principal.KeyID
 	return c.JSON(http.StatusOK, out)
-}
-
-type listJSON[T any] struct {
-	Items      []T    `json:"items"`
-	NextCursor string `json:"next_cursor,omitempty"`
 }
 
 func (s *Server) listLocations(c echo.Context) error {
@@ -65,76 +50,45 @@ func (s *Server) listLocations(c echo.Context) error {
 	if err != nil {
 		return err
 	}
-	out := listJSON[locationJSON]{Items: make([]locationJSON, 0, len(ls))}
-	for _, l := range ls {
-		out.Items = append(out.Items, toLocationJSON(l))
-	}
-	if len(ls) > 0 {
-		out.NextCursor = nextCursor(len(ls), p.Limit, ls[len(ls)-1].ID)
-	}
-	return c.JSON(http.StatusOK, out)
-}
-
-type locationCreateJSON struct {
-	Name       string `json:"name"`
-	Code       string `json:"code"`
-	Timezone   string `json:"timezone"`
-	Address    string `json:"address"`
-	TaxRatePPM int64  `json:"tax_rate_ppm"`
+	return writePage(c, ls, p, func(l service.Location) uuid.UUID { return l.ID }, utcLocation)
 }
 
 func (s *Server) createLocation(c echo.Context) error {
-	var in locationCreateJSON
+	var in service.LocationInput
 	if err := decode(c, &in); err != nil {
 		return err
 	}
-	l, err := s.svc.CreateLocation(c.Request().Context(), principal(c), service.LocationInput{
-		Name: in.Name, Code: in.Code, Timezone: in.Timezone, Address: in.Address, TaxRatePPM: in.TaxRatePPM})
+	l, err := s.svc.CreateLocation(c.Request().Context(), principal(c), in)
 	if err != nil {
 		return err
 	}
 	c.Response().Header().Set("ETag", l.ETag())
 	c.Response().Header().Set("Location", "/v1/locations/"+l.ID.String())
-	return c.JSON(http.StatusCreated, toLocationJSON(l))
+	return c.JSON(http.StatusCreated, utcLocation(l))
 }
 
 func (s *Server) getLocation(c echo.Context) error {
-	id, err := pathID(c)
-	if err != nil {
-		return err
-	}
+	id := pathID(c)
 	l, err := s.svc.GetLocation(c.Request().Context(), principal(c), id)
 	if err != nil {
 		return err
 	}
 	c.Response().Header().Set("ETag", l.ETag())
-	return c.JSON(http.StatusOK, toLocationJSON(l))
-}
-
-type locationPatchJSON struct {
-	Name       *string `json:"name"`
-	Code       *string `json:"code"`
-	Timezone   *string `json:"timezone"`
-	Address    *string `json:"address"`
-	TaxRatePPM *int64  `json:"tax_rate_ppm"`
+	return c.JSON(http.StatusOK, utcLocation(l))
 }
 
 func (s *Server) updateLocation(c echo.Context) error {
-	id, err := pathID(c)
-	if err != nil {
-		return err
-	}
-	var in locationPatchJSON
+	id := pathID(c)
+	var in service.LocationPatch
 	if err := decode(c, &in); err != nil {
 		return err
 	}
-	l, err := s.svc.UpdateLocation(c.Request().Context(), principal(c), id, c.Request().Header.Get("If-Match"),
-		service.LocationPatch{Name: in.Name, Code: in.Code, Timezone: in.Timezone, Address: in.Address, TaxRatePPM: in.TaxRatePPM})
+	l, err := s.svc.UpdateLocation(c.Request().Context(), principal(c), id, c.Request().Header.Get("If-Match"), in)
 	if err != nil {
 		return err
 	}
 	c.Response().Header().Set("ETag", l.ETag())
-	return c.JSON(http.StatusOK, toLocationJSON(l))
+	return c.JSON(http.StatusOK, utcLocation(l))
 }
 
 type apiKeyJSON struct {
@@ -166,29 +120,15 @@ func (s *Server) listAPIKeys(c echo.Context) error {
 	if err != nil {
 		return err
 	}
-	out := listJSON[apiKeyJSON]{Items: make([]apiKeyJSON, 0, len(ks))}
-	for _, k := range ks {
-		out.Items = append(out.Items, toAPIKeyJSON(k))
-	}
-	if len(ks) > 0 {
-		out.NextCursor = nextCursor(len(ks), p.Limit, ks[len(ks)-1].ID)
-	}
-	return c.JSON(http.StatusOK, out)
-}
-
-type apiKeyCreateJSON struct {
-	Role       service.Role `json:"role"`
-	Name       string       `json:"name"`
-	LocationID *uuid.UUID   `json:"location_id"`
+	return writePage(c, ks, p, func(k service.APIKey) uuid.UUID { return k.ID }, toAPIKeyJSON)
 }
 
 func (s *Server) createAPIKey(c echo.Context) error {
-	var in apiKeyCreateJSON
+	var in service.NewKeyInput
 	if err := decode(c, &in); err != nil {
 		return err
 	}
-	k, err := s.svc.CreateAPIKey(c.Request().Context(), principal(c).OrgID,
-		service.NewKeyInput{Name: in.Name, Role: in.Role, LocationID: in.LocationID})
+	k, err := s.svc.CreateAPIKey(c.Request().Context(), principal(c).OrgID, in)
 	if err != nil {
 		return err
 	}
@@ -199,10 +139,7 @@ func (s *Server) createAPIKey(c echo.Context) error {
 }
 
 func (s *Server) revokeAPIKey(c echo.Context) error {
-	id, err := pathID(c)
-	if err != nil {
-		return err
-	}
+	id := pathID(c)
 	k, err := s.svc.RevokeAPIKey(c.Request().Context(), principal(c), id)
 	if err != nil {
 		return err

@@ -2,7 +2,6 @@ package api
 
 import (
 	"encoding/base64"
-	"fmt"
 	"io"
 	"net/http"
 	"strconv"
@@ -10,8 +9,9 @@ import (
 	"github.com/google/uuid"
 	"github.com/labstack/echo/v4"
 
+	"wheelbench/api/strictjson"
 	"wheelbench/service"
-	"wheelbench/strictjson"
+	"wheelbench/service/field"
 )
 
 // decode reads the body into v under the one strict policy (package
@@ -23,23 +23,15 @@ import (
 func decode(c echo.Context, v any) error {
 	body, err := io.ReadAll(c.Request().Body)
 	if err != nil {
-		return err // a bodyError or *http.MaxBytesError, with its own status
+		return err // an httpProblem or *http.MaxBytesError, with its own status
 	}
-	return decodeBytes(body, v)
-}
-
-func decodeBytes(body []byte, v any) error {
 	return strictjson.Unmarshal(body, v)
 }
 
-// pathID parses the {id} path parameter. A malformed id is treated as
-// unknown (404) so that ids never leak which form exists.
-func pathID(c echo.Context) (uuid.UUID, error) {
-	id, err := uuid.Parse(c.Param("id"))
-	if err != nil {
-		return uuid.Nil, fmt.Errorf("no such resource: %w", service.ErrNotFound)
-	}
-	return id, nil
+// pathID is the {id} path parameter, parsed by validateRequest.
+func pathID(c echo.Context) uuid.UUID {
+	id, _ := c.Get("id").(uuid.UUID)
+	return id
 }
 
 // page reads limit and cursor. A cursor is the opaque base64url of the last
@@ -49,8 +41,7 @@ func page(c echo.Context) (service.Page, error) {
 	if s := c.QueryParam("limit"); s != "" {
 		n, err := strconv.Atoi(s)
 		if err != nil || n < 1 || n > service.MaxPageSize {
-			return p, &validationError{status: http.StatusBadRequest, detail: "Bad paging parameters.",
-				fields: []FieldProblem{{Pointer: "query:limit", Message: fmt.Sprintf("limit must be an integer from 1 to %d", service.MaxPageSize)}}}
+			return p, field.Invalid("query:limit", "limit must be an integer from 1 to %d", service.MaxPageSize)
 		}
 		p.Limit = n
 	}
@@ -61,18 +52,32 @@ func page(c echo.Context) (service.Page, error) {
 			id, err = uuid.FromBytes(b)
 		}
 		if err != nil {
-			return p, &validationError{status: http.StatusBadRequest, detail: "Bad paging parameters.",
-				fields: []FieldProblem{{Pointer: "query:cursor", Message: "cursor must be a next_cursor this API returned"}}}
+			return p, field.Invalid("query:cursor", "cursor must be a next_cursor this API returned")
 		}
 		p.After = id
 	}
 	return p, nil
 }
 
-// nextCursor returns the cursor after last when the page was full.
-func nextCursor(n, limit int, last uuid.UUID) string {
-	if n < limit {
-		return ""
-	}
-	return base64.RawURLEncoding.EncodeToString(last[:])
+// listJSON is one page of a list.
+type listJSON[T any] struct {
+	Items      []T    `json:"items"`
+	NextCursor string `json:"next_cursor,omitempty"`
 }
+
+// writePage answers one page of items, each as view writes it ([] for
+// none), with the cursor after the last item when the page is full.
+func writePage[T, V any](c echo.Context, items []T, pg service.Page, id func(T) uuid.UUID, view func(T) V) error {
+	out := listJSON[V]{Items: make([]V, 0, len(items))}
+	for _, it := range items {
+		out.Items = append(out.Items, view(it))
+	}
+	if n := len(items); n > 0 && n >= pg.Limit {
+		last := id(items[n-1])
+		out.NextCursor = base64.RawURLEncoding.EncodeToString(last[:])
+	}
+	return c.JSON(http.StatusOK, out)
+}
+
+// as is the view of an item that is written as it is.
+func as[T any](t T) T { return t }

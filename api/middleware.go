@@ -3,6 +3,7 @@ package api
 import (
 	"bytes"
 	"errors"
+	"fmt"
 	"io"
 	"log/slog"
 	"maps"
@@ -17,10 +18,12 @@ import (
 	"github.com/getkin/kin-openapi/openapi3"
 	"github.com/getkin/kin-openapi/openapi3filter"
 	"github.com/getkin/kin-openapi/routers"
+	"github.com/google/uuid"
 	"github.com/labstack/echo/v4"
 
+	"wheelbench/api/strictjson"
 	"wheelbench/service"
-	"wheelbench/strictjson"
+	"wheelbench/service/field"
 )
 
 // principal returns the authenticated caller of c.
@@ -66,14 +69,6 @@ func (s *Server) authenticate(next echo.HandlerFunc) echo.HandlerFunc {
 		return next(c)
 	}
 }
-
-// httpProblem is an error with a fixed status and detail.
-type httpProblem struct {
-	status int
-	detail string
-}
-
-func (e *httpProblem) Error() string { return e.detail }
 
 func unauthorized(detail string) error {
 	return &httpProblem{status: http.StatusUnauthorized, detail: detail}
@@ -151,6 +146,15 @@ func (s *Server) validateRequest(next echo.HandlerFunc) echo.HandlerFunc {
 				return verr
 			}
 		}
+		if raw, ok := params["id"]; ok {
+			// A malformed id is treated as unknown (404), so that ids
+			// never leak which form exists.
+			id, err := uuid.Parse(raw)
+			if err != nil {
+				return fmt.Errorf("no such resource: %w", service.ErrNotFound)
+			}
+			c.Set("id", id) // pathID
+		}
 		return next(c)
 	}
 }
@@ -180,8 +184,7 @@ func checkQuery(req *http.Request, route *routers.Route) error {
 		if !utf8.ValidString(name) {
 			name = strings.ToValidUTF8(name, "\ufffd")
 		}
-		return &validationError{status: http.StatusBadRequest, detail: "The request has invalid parameters: see errors.",
-			fields: []FieldProblem{{Pointer: "query:" + strings.ReplaceAll(name, "\x00", ""), Message: msg}}}
+		return field.Invalid("query:"+strings.ReplaceAll(name, "\x00", ""), "%s", msg)
 	}
 	if req.URL.RawQuery == "" {
 		return nil
@@ -266,7 +269,7 @@ func (s *Server) limitBody(next echo.HandlerFunc) echo.HandlerFunc {
 }
 
 // bodyReader turns the errors of reading a request body that are the
-// client's doing into bodyErrors with their status.
+// client's doing into problems with their status.
 type bodyReader struct{ r io.ReadCloser }
 
 func (b *bodyReader) Read(p []byte) (int, error) {
@@ -274,22 +277,14 @@ func (b *bodyReader) Read(p []byte) (int, error) {
 	switch {
 	case err == nil, err == io.EOF:
 	case errors.Is(err, os.ErrDeadlineExceeded):
-		err = &bodyError{status: http.StatusRequestTimeout, detail: "The body did not arrive within the request timeout; send it whole and promptly."}
+		err = &httpProblem{status: http.StatusRequestTimeout, detail: "The body did not arrive within the request timeout; send it whole and promptly."}
 	case errors.Is(err, io.ErrUnexpectedEOF):
-		err = &bodyError{status: http.StatusBadRequest, detail: "The body ended before its declared Content-Length."}
+		err = &httpProblem{status: http.StatusBadRequest, detail: "The body ended before its declared Content-Length."}
 	}
 	return n, err
 }
 
 func (b *bodyReader) Close() error { return b.r.Close() }
-
-// bodyError is a body that could not be read through the client's doing.
-type bodyError struct {
-	status int
-	detail string
-}
-
-func (e *bodyError) Error() string { return e.detail }
 
 // logRequests writes one structured line per request.
 func (s *Server) logRequests(next echo.HandlerFunc) echo.HandlerFunc {

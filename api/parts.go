@@ -1,12 +1,16 @@
 package api
 
 import (
-	"encoding/json"
+	"bytes"
 	"net/http"
 
+	"github.com/go-json-experiment/json/jsontext"
+	"github.com/google/uuid"
 	"github.com/labstack/echo/v4"
 
+	"wheelbench/api/strictjson"
 	"wheelbench/service"
+	"wheelbench/service/field"
 )
 
 type partCreateJSON struct {
@@ -15,7 +19,7 @@ type partCreateJSON struct {
 	Name       string           `json:"name"`
 	PriceMinor int64            `json:"price_minor"`
 	Currency   string           `json:"currency"`
-	Dimensions json.RawMessage  `json:"dimensions"`
+	Dimensions jsontext.Value   `json:"dimensions"`
 }
 
 func (s *Server) createPart(c echo.Context) error {
@@ -23,7 +27,12 @@ func (s *Server) createPart(c echo.Context) error {
 	if err := decode(c, &in); err != nil {
 		return err
 	}
-	p, err := s.svc.CreatePart(c.Request().Context(), principal(c), service.PartInput(in))
+	dims, err := decodeDimensions(in.Kind, in.Dimensions)
+	if err != nil {
+		return err
+	}
+	p, err := s.svc.CreatePart(c.Request().Context(), principal(c), service.PartInput{Kind: in.Kind, SKU: in.SKU, Name: in.Name,
+		PriceMinor: in.PriceMinor, Currency: in.Currency, Dimensions: dims})
 	if err != nil {
 		return err
 	}
@@ -33,10 +42,7 @@ func (s *Server) createPart(c echo.Context) error {
 }
 
 func (s *Server) getPart(c echo.Context) error {
-	id, err := pathID(c)
-	if err != nil {
-		return err
-	}
+	id := pathID(c)
 	p, err := s.svc.GetPart(c.Request().Context(), principal(c), id)
 	if err != nil {
 		return err
@@ -55,34 +61,55 @@ func (s *Server) listParts(c echo.Context) error {
 	if err != nil {
 		return err
 	}
-	out := listJSON[service.Part]{Items: ps}
-	if out.Items == nil {
-		out.Items = []service.Part{}
-	}
-	if len(ps) > 0 {
-		out.NextCursor = nextCursor(len(ps), pg.Limit, ps[len(ps)-1].ID)
-	}
-	return c.JSON(http.StatusOK, out)
+	return writePage(c, ps, pg, func(p service.Part) uuid.UUID { return p.ID }, as)
 }
 
 type partPatchJSON struct {
-	SKU        *string         `json:"sku"`
-	Name       *string         `json:"name"`
-	PriceMinor *int64          `json:"price_minor"`
-	Currency   *string         `json:"currency"`
-	Dimensions json.RawMessage `json:"dimensions"`
+	SKU        *string        `json:"sku"`
+	Name       *string        `json:"name"`
+	PriceMinor *int64         `json:"price_minor"`
+	Currency   *string        `json:"currency"`
+	Dimensions jsontext.Value `json:"dimensions"`
+}
+
+// decodeDimensions reads a part's dimensions for its kind under the strict
+// policy: the object the compatibility check takes for that kind, every
+// number in it not negative. None (nil) when absent or the kind is not one
+// of ours: the service says what is missing.
+func decodeDimensions(kind service.PartKind, raw jsontext.Value) (any, error) {
+	dims := kind.NewDimensions()
+	if len(raw) == 0 || dims == nil {
+		return nil, nil
+	}
+	if err := strictjson.Unmarshal(raw, dims); err != nil {
+		return nil, field.Under("/dimensions", err)
+	}
+	dec := jsontext.NewDecoder(bytes.NewReader(raw))
+	for {
+		tok, err := dec.ReadToken()
+		if err != nil {
+			return dims, nil // read whole already: only its end is left
+		}
+		if tok.Kind() != '0' {
+			continue
+		}
+		if f, _ := tok.Float(); f < 0 {
+			return nil, field.Invalid("/dimensions"+string(dec.StackPointer()), "must be a finite number, not negative")
+		}
+	}
 }
 
 func (s *Server) updatePart(c echo.Context) error {
-	id, err := pathID(c)
-	if err != nil {
-		return err
-	}
+	id := pathID(c)
 	var in partPatchJSON
 	if err := decode(c, &in); err != nil {
 		return err
 	}
-	p, err := s.svc.UpdatePart(c.Request().Context(), principal(c), id, c.Request().Header.Get("If-Match"), service.PartPatch(in))
+	patch := service.PartPatch{SKU: in.SKU, Name: in.Name, PriceMinor: in.PriceMinor, Currency: in.Currency}
+	if in.Dimensions != nil {
+		patch.Dimensions = func(kind service.PartKind) (any, error) { return decodeDimensions(kind, in.Dimensions) }
+	}
+	p, err := s.svc.UpdatePart(c.Request().Context(), principal(c), id, c.Request().Header.Get("If-Match"), patch)
 	if err != nil {
 		return err
 	}
@@ -91,10 +118,7 @@ func (s *Server) updatePart(c echo.Context) error {
 }
 
 func (s *Server) getPartStock(c echo.Context) error {
-	id, err := pathID(c)
-	if err != nil {
-		return err
-	}
+	id := pathID(c)
 	st, err := s.svc.GetPartStock(c.Request().Context(), principal(c), id)
 	if err != nil {
 		return err
@@ -111,10 +135,7 @@ func writeStock(c echo.Context, st service.PartStock) error {
 }
 
 func (s *Server) putPartStock(c echo.Context) error {
-	id, err := pathID(c)
-	if err != nil {
-		return err
-	}
+	id := pathID(c)
 	var in struct {
 		Levels []service.StockLevel `json:"levels"`
 	}

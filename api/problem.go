@@ -4,7 +4,9 @@ import (
 	"context"
 	"errors"
 	"fmt"
+	"maps"
 	"net/http"
+	"slices"
 	"strings"
 
 	"github.com/getkin/kin-openapi/openapi3"
@@ -12,6 +14,7 @@ import (
 	"github.com/labstack/echo/v4"
 
 	"wheelbench/service"
+	"wheelbench/service/field"
 )
 
 // Problem is an RFC 9457 problem details body.
@@ -32,23 +35,15 @@ type FieldProblem struct {
 	Message string `json:"message"`
 }
 
-// fieldError is what every package's field error offers (service.FieldError
-// and the pure packages' own types).
-type fieldError interface {
-	error
-	FieldPointer() string
-	IsUnprocessable() bool
-}
-
-// validationError is a set of field problems found by the HTTP layer itself
-// (spec validation, JSON decoding).
-type validationError struct {
+// httpProblem is an error the HTTP layer answers with a fixed status and
+// detail (a body that could not be read, a method or media type the route
+// does not take, a role too low).
+type httpProblem struct {
 	status int
 	detail string
-	fields []FieldProblem
 }
 
-func (e *validationError) Error() string { return e.detail }
+func (e *httpProblem) Error() string { return e.detail }
 
 // statusOf maps the service's error kinds to HTTP statuses: the one table.
 var statusOf = []struct {
@@ -67,50 +62,24 @@ var statusOf = []struct {
 	{service.ErrGone, http.StatusGone},
 }
 
-// collectFieldErrors walks err's tree (errors.Join included) for field errors.
-func collectFieldErrors(err error, out []fieldError) []fieldError {
-	if fe, ok := err.(fieldError); ok {
-		return append(out, fe)
-	}
-	switch u := err.(type) {
-	case interface{ Unwrap() []error }:
-		for _, e := range u.Unwrap() {
-			out = collectFieldErrors(e, out)
-		}
-	case interface{ Unwrap() error }:
-		if e := u.Unwrap(); e != nil {
-			out = collectFieldErrors(e, out)
-		}
-	}
-	return out
-}
-
 // toProblem turns any error into a problem; internal reports whether it is a
 // server fault (logged, with a generic title).
 func toProblem(err error) (p Problem, internal bool) {
-	var be *bodyError
-	if errors.As(err, &be) {
-		return Problem{Status: be.status, Title: http.StatusText(be.status), Detail: be.detail}, false
-	}
 	var hp *httpProblem
 	if errors.As(err, &hp) {
 		return Problem{Status: hp.status, Title: http.StatusText(hp.status), Detail: hp.detail}, false
 	}
-	var ve *validationError
-	if errors.As(err, &ve) {
-		return Problem{Status: ve.status, Title: http.StatusText(ve.status), Detail: ve.detail, Errors: ve.fields}, false
-	}
-	if fes := collectFieldErrors(err, nil); len(fes) > 0 {
+	if fes := field.All(err); len(fes) > 0 {
 		status := http.StatusBadRequest
 		for _, fe := range fes {
-			if fe.IsUnprocessable() {
+			if fe.Unprocessable {
 				status = http.StatusUnprocessableEntity
 			}
 		}
 		p := Problem{Status: status, Title: http.StatusText(status)}
 		for _, fe := range fes {
 			// Every field is listed, so that a client can mend them all at once.
-			p.Errors = append(p.Errors, FieldProblem{Pointer: fe.FieldPointer(), Message: messageOf(fe)})
+			p.Errors = append(p.Errors, FieldProblem{Pointer: fe.Pointer, Message: fe.Message})
 		}
 		if status == http.StatusUnprocessableEntity {
 			p.Detail = "The request is well-formed but cannot be carried out: see errors."
@@ -156,16 +125,6 @@ func toProblem(err error) (p Problem, internal bool) {
 			Detail: "The request took too long; retry shortly."}, false
 	}
 	return Problem{Status: http.StatusInternalServerError, Title: http.StatusText(http.StatusInternalServerError)}, true
-}
-
-// messageOf is a field error's message without its pointer prefix.
-func messageOf(fe fieldError) string {
-	type messager interface{ FieldMessage() string }
-	if m, ok := fe.(messager); ok {
-		return m.FieldMessage()
-	}
-	msg := fe.Error()
-	return strings.TrimPrefix(msg, fe.FieldPointer()+": ")
 }
 
 // detailOf is the sentence a problem says for err, which wraps sentinel:
@@ -230,93 +189,80 @@ func resourceNoun(route string) string {
 	return ""
 }
 
-// fromSpecError converts a kin-openapi request validation error.
+// fromSpecError converts a kin-openapi request validation error: field
+// errors (400) naming the member or parameter the spec refuses, or the
+// error of reading the body (its own status). nil when nothing is left
+// once authentication's part (the auth middleware's job) is set aside.
 func fromSpecError(err error) error {
-	var fields []FieldProblem
-	status := http.StatusBadRequest
-	detail := "The request does not match the API description: see errors."
-	var bodyErr *bodyError
-	var add func(e error)
-	add = func(e error) {
+	var out []error
+	seen := map[string]bool{}
+	add := func(ptr, msg string) {
+		if !seen[ptr+"\x00"+msg] {
+			seen[ptr+"\x00"+msg] = true
+			out = append(out, &field.Error{Pointer: ptr, Message: msg})
+		}
+	}
+	var walk func(e error) error
+	walk = func(e error) error {
 		if me, ok := e.(openapi3.MultiError); ok {
 			for _, x := range me {
-				add(x)
+				if err := walk(x); err != nil {
+					return err
+				}
 			}
-			return
+			return nil
 		}
+		var hp *httpProblem
+		var mbe *http.MaxBytesError
 		var re *openapi3filter.RequestError
-		if errors.As(e, &re) {
-			var be *bodyError
-			if errors.As(e, &be) {
-				bodyErr = be
-				return
-			}
-			var mbe *http.MaxBytesError
-			if errors.As(e, &mbe) {
-				status = http.StatusRequestEntityTooLarge
-				detail = fmt.Sprintf("The body is larger than this route's limit of %d bytes.", mbe.Limit)
-				return
-			}
-			if re.Parameter != nil {
-				msg := re.Reason
-				var se *openapi3.SchemaError
-				if errors.As(re.Err, &se) {
-					msg = se.Reason
-				} else if re.Err != nil && msg == "" {
-					msg = re.Err.Error()
-				}
-				fields = append(fields, FieldProblem{Pointer: re.Parameter.In + ":" + re.Parameter.Name, Message: msg})
-				return
-			}
-			if strings.Contains(re.Reason, "Content-Type") {
-				status = http.StatusUnsupportedMediaType
-				detail = "Send the body as application/json."
-				return
-			}
-			if re.Err == nil {
-				fields = append(fields, FieldProblem{Pointer: "", Message: re.Reason})
-				return
-			}
-			var pe *openapi3filter.ParseError
-			if errors.As(re.Err, &pe) {
-				fields = append(fields, FieldProblem{Pointer: "", Message: "the body is not valid JSON"})
-				return
-			}
-			add(re.Err)
-			return
-		}
 		var se *openapi3.SchemaError
-		if errors.As(e, &se) {
-			ptr := se.JSONPointer()
-			p := ""
-			for _, s := range ptr {
-				p += "/" + strings.ReplaceAll(strings.ReplaceAll(s, "~", "~0"), "/", "~1")
+		var pe *openapi3filter.ParseError
+		var sre *openapi3filter.SecurityRequirementsError
+		switch {
+		case errors.As(e, &hp):
+			return hp
+		case errors.As(e, &mbe):
+			return mbe
+		case errors.As(e, &sre):
+		case errors.As(e, &re) && re.Parameter != nil:
+			msg := re.Reason
+			if errors.As(re.Err, &se) {
+				msg = se.Reason
+			} else if re.Err != nil && msg == "" {
+				msg = re.Err.Error()
 			}
-			if strings.HasPrefix(se.Reason, "property \"") && strings.HasSuffix(se.Reason, "\" is unsupported") {
-				// Reason reads: property "name" is unsupported.
-				if _, rest, ok := strings.Cut(se.Reason, `"`); ok {
-					if name, _, ok := strings.Cut(rest, `"`); ok {
-						p += "/" + strings.ReplaceAll(strings.ReplaceAll(name, "~", "~0"), "/", "~1")
-						fields = append(fields, FieldProblem{Pointer: p, Message: "unknown field"})
-						return
-					}
+			add(re.Parameter.In+":"+re.Parameter.Name, msg)
+		case errors.As(e, &re) && re.Err == nil:
+			add("", re.Reason)
+		case errors.As(e, &pe):
+			add("", "the body is not valid JSON")
+		case errors.As(e, &re):
+			return walk(re.Err)
+		case errors.As(e, &se):
+			ptr := ""
+			for _, s := range se.JSONPointer() {
+				ptr += "/" + pointerEscaper.Replace(s)
+			}
+			obj, isObject := se.Value.(map[string]any)
+			if se.SchemaField != "properties" || !isObject || se.Schema == nil {
+				add(ptr, se.Reason)
+				break
+			}
+			// A member the object's schema does not have: each by name.
+			for _, k := range slices.Sorted(maps.Keys(obj)) {
+				if _, known := se.Schema.Properties[k]; !known {
+					add(ptr+"/"+pointerEscaper.Replace(k), "unknown field")
 				}
 			}
-			fields = append(fields, FieldProblem{Pointer: p, Message: se.Reason})
-			return
+		default:
+			add("", e.Error())
 		}
-		var sre *openapi3filter.SecurityRequirementsError
-		if errors.As(e, &sre) {
-			return // authentication is the auth middleware's job
-		}
-		fields = append(fields, FieldProblem{Pointer: "", Message: e.Error()})
-	}
-	add(err)
-	if bodyErr != nil {
-		return bodyErr
-	}
-	if status == http.StatusBadRequest && len(fields) == 0 {
 		return nil
 	}
-	return &validationError{status: status, detail: detail, fields: fields}
+	if err := walk(err); err != nil {
+		return err
+	}
+	return errors.Join(out...)
 }
+
+var pointerEscaper = strings.NewReplacer("~", "~0", "/", "~1")

@@ -7,6 +7,7 @@
 package api
 
 import (
+	"errors"
 	"log/slog"
 	"net/http"
 	"strings"
@@ -68,11 +69,12 @@ type Route struct {
 	// Idempotent routes honour Idempotency-Key (every creating POST).
 	Idempotent bool
 	// OwnBodyCheck skips the spec's request-body validation: the handler
-	// checks the body against the spec itself (for a body too large to be
-	// validated generically within the route's time budget).
+	// checks the body against the spec itself (the spoke-length routes; with
+	// the spec's check a request took 2.3-2.8 times the CPU, a batch 1.9).
 	OwnBodyCheck bool
 	// SpecCheckOnError skips the spec's body validation for bodies the
-	// handler accepts and applies it to those it refuses (specCheckOnError).
+	// handler accepts and applies it to those it refuses (specCheckOnError;
+	// POST /v1/builds, where it saves a fifth of the service's CPU).
 	SpecCheckOnError bool
 	handler          echo.HandlerFunc
 }
@@ -88,11 +90,7 @@ func init() {
 	openapi3filter.RegisterBodyDecoder("application/problem+json", openapi3filter.JSONBodyDecoder)
 }
 
-type constError string
-
-func (e constError) Error() string { return string(e) }
-
-const errInvalidUUID = constError("must be a UUID such as 0192f5e2-7c1a-7b3e-9d4f-2a6b8c0d1e2f")
+var errInvalidUUID = errors.New("must be a UUID such as 0192f5e2-7c1a-7b3e-9d4f-2a6b8c0d1e2f")
 
 // New builds the server. It fails when the embedded OpenAPI document does
 // not load or validate.

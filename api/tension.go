@@ -4,31 +4,22 @@ import (
 	"bytes"
 	"net/http"
 	"strconv"
-	"time"
+	"strings"
 
 	"github.com/google/uuid"
 	"github.com/labstack/echo/v4"
 
+	"wheelbench/api/chart"
+	"wheelbench/api/strictjson"
 	"wheelbench/service"
-	"wheelbench/service/spoke"
-	"wheelbench/strictjson"
+	"wheelbench/service/field"
+	"wheelbench/service/tension"
 )
 
-type toolJSON struct {
-	ID             uuid.UUID `json:"id"`
-	LocationID     uuid.UUID `json:"location_id"`
-	Label          string    `json:"label"`
-	Serial         string    `json:"serial"`
-	UnitMM         float64   `json:"unit_mm"`
-	MeasuredSpanMM *float64  `json:"measured_span_mm,omitempty"`
-	Notes          string    `json:"notes"`
-	CreatedAt      time.Time `json:"created_at"`
-	UpdatedAt      time.Time `json:"updated_at"`
-}
-
-func toToolJSON(t service.Tool) toolJSON {
-	return toolJSON{ID: t.ID, LocationID: t.LocationID, Label: t.Label, Serial: t.Serial, UnitMM: t.UnitMM,
-		MeasuredSpanMM: t.MeasuredSpanMM, Notes: t.Notes, CreatedAt: t.CreatedAt.UTC(), UpdatedAt: t.UpdatedAt.UTC()}
+// utcTool is a tool as answered: its times in UTC.
+func utcTool(t service.Tool) service.Tool {
+	t.CreatedAt, t.UpdatedAt = t.CreatedAt.UTC(), t.UpdatedAt.UTC()
+	return t
 }
 
 func (s *Server) listTools(c echo.Context) error {
@@ -40,51 +31,31 @@ func (s *Server) listTools(c echo.Context) error {
 	if err != nil {
 		return err
 	}
-	out := listJSON[toolJSON]{Items: make([]toolJSON, 0, len(ts))}
-	for _, t := range ts {
-		out.Items = append(out.Items, toToolJSON(t))
-	}
-	if len(ts) > 0 {
-		out.NextCursor = nextCursor(len(ts), p.Limit, ts[len(ts)-1].ID)
-	}
-	return c.JSON(http.StatusOK, out)
-}
-
-type toolCreateJSON struct {
-	LocationID     uuid.UUID `json:"location_id"`
-	Label          string    `json:"label"`
-	Serial         string    `json:"serial"`
-	UnitMM         *float64  `json:"unit_mm"`
-	MeasuredSpanMM *float64  `json:"measured_span_mm"`
-	Notes          string    `json:"notes"`
+	return writePage(c, ts, p, func(t service.Tool) uuid.UUID { return t.ID }, utcTool)
 }
 
 func (s *Server) createTool(c echo.Context) error {
-	var in toolCreateJSON
+	var in service.ToolInput
 	if err := decode(c, &in); err != nil {
 		return err
 	}
-	t, err := s.svc.CreateTool(c.Request().Context(), principal(c), service.ToolInput{LocationID: in.LocationID,
-		Label: in.Label, Serial: in.Serial, UnitMM: in.UnitMM, MeasuredSpanMM: in.MeasuredSpanMM, Notes: in.Notes})
+	t, err := s.svc.CreateTool(c.Request().Context(), principal(c), in)
 	if err != nil {
 		return err
 	}
 	c.Response().Header().Set("ETag", t.ETag())
 	c.Response().Header().Set("Location", "/v1/tools/"+t.ID.String())
-	return c.JSON(http.StatusCreated, toToolJSON(t))
+	return c.JSON(http.StatusCreated, utcTool(t))
 }
 
 func (s *Server) getTool(c echo.Context) error {
-	id, err := pathID(c)
-	if err != nil {
-		return err
-	}
+	id := pathID(c)
 	t, err := s.svc.GetTool(c.Request().Context(), principal(c), id)
 	if err != nil {
 		return err
 	}
 	c.Response().Header().Set("ETag", t.ETag())
-	return c.JSON(http.StatusOK, toToolJSON(t))
+	return c.JSON(http.StatusOK, utcTool(t))
 }
 
 // nullableFloat tells an absent field (Set false) from null (Set, Value
@@ -115,10 +86,7 @@ type toolPatchJSON struct {
 }
 
 func (s *Server) updateTool(c echo.Context) error {
-	id, err := pathID(c)
-	if err != nil {
-		return err
-	}
+	id := pathID(c)
 	var in toolPatchJSON
 	if err := decode(c, &in); err != nil {
 		return err
@@ -131,7 +99,7 @@ func (s *Server) updateTool(c echo.Context) error {
 		return err
 	}
 	c.Response().Header().Set("ETag", t.ETag())
-	return c.JSON(http.StatusOK, toToolJSON(t))
+	return c.JSON(http.StatusOK, utcTool(t))
 }
 
 type modelParamJSON struct {
@@ -141,42 +109,36 @@ type modelParamJSON struct {
 }
 
 type calibrationModelJSON struct {
-	Identified         bool                     `json:"identified"`
-	UnidentifiedReason string                   `json:"unidentified_reason,omitempty"`
-	ModelVersion       int                      `json:"model_version"`
-	UnitMM             float64                  `json:"unit_mm"`
-	MeasuredSpanMM     *float64                 `json:"measured_span_mm,omitempty"`
-	TensionRangeN      [2]float64               `json:"tension_range_n"`
-	Parameters         []modelParamJSON         `json:"parameters,omitempty"`
-	ResidualSDUnits    *float64                 `json:"residual_sd_units,omitempty"`
-	Points             *int                     `json:"points,omitempty"`
-	DoF                *int                     `json:"dof,omitempty"`
-	T975               *float64                 `json:"t_975,omitempty"`
-	ConditionNumber    *float64                 `json:"condition_number,omitempty"`
-	Iterations         *int                     `json:"iterations,omitempty"`
-	Warnings           []service.TensionWarning `json:"warnings"`
+	Identified         bool              `json:"identified"`
+	UnidentifiedReason string            `json:"unidentified_reason,omitempty"`
+	ModelVersion       int               `json:"model_version"`
+	UnitMM             float64           `json:"unit_mm"`
+	MeasuredSpanMM     *float64          `json:"measured_span_mm,omitempty"`
+	TensionRangeN      [2]float64        `json:"tension_range_n"`
+	Parameters         []modelParamJSON  `json:"parameters,omitempty"`
+	ResidualSDUnits    *float64          `json:"residual_sd_units,omitempty"`
+	Points             *int              `json:"points,omitempty"`
+	DoF                *int              `json:"dof,omitempty"`
+	T975               *float64          `json:"t_975,omitempty"`
+	ConditionNumber    *float64          `json:"condition_number,omitempty"`
+	Iterations         *int              `json:"iterations,omitempty"`
+	Warnings           []tension.Warning `json:"warnings"`
 }
 
+// calibrationJSON is a calibration version with its model described.
 type calibrationJSON struct {
-	ID        uuid.UUID                   `json:"id"`
-	ToolID    uuid.UUID                   `json:"tool_id"`
-	Version   int                         `json:"version"`
-	Source    string                      `json:"source"`
-	Notes     string                      `json:"notes"`
-	Tool      service.ToolFacts           `json:"tool"`
-	Columns   []service.CalibrationColumn `json:"columns"`
-	Model     calibrationModelJSON        `json:"model"`
-	CreatedAt time.Time                   `json:"created_at"`
+	service.Calibration
+	Model calibrationModelJSON `json:"model"`
 }
 
 func toCalibrationJSON(cal service.Calibration) calibrationJSON {
-	out := calibrationJSON{ID: cal.ID, ToolID: cal.ToolID, Version: cal.Version, Source: cal.Source, Notes: cal.Notes,
-		Tool: cal.Tool, Columns: cal.Columns, CreatedAt: cal.CreatedAt.UTC()}
+	cal.CreatedAt = cal.CreatedAt.UTC()
+	out := calibrationJSON{Calibration: cal}
 	if m := cal.Model; m != nil {
 		mj := calibrationModelJSON{ModelVersion: m.Version, UnitMM: m.UnitMM, MeasuredSpanMM: m.MeasuredSpanMM,
 			TensionRangeN: m.TensionRangeN, UnidentifiedReason: m.Unidentified, Warnings: m.Warnings}
 		if mj.Warnings == nil {
-			mj.Warnings = []service.TensionWarning{}
+			mj.Warnings = []tension.Warning{}
 		}
 		if ph := m.Physical; ph != nil {
 			mj.Identified = true
@@ -191,23 +153,13 @@ func toCalibrationJSON(cal service.Calibration) calibrationJSON {
 	return out
 }
 
-type calibrationCreateJSON struct {
-	Source  string                      `json:"source"`
-	Columns []service.CalibrationColumn `json:"columns"`
-	Notes   string                      `json:"notes"`
-}
-
 func (s *Server) publishCalibration(c echo.Context) error {
-	toolID, err := pathID(c)
-	if err != nil {
-		return err
-	}
-	var in calibrationCreateJSON
+	toolID := pathID(c)
+	var in service.CalibrationInput
 	if err := decode(c, &in); err != nil {
 		return err
 	}
-	cal, err := s.svc.PublishCalibration(c.Request().Context(), principal(c), toolID,
-		service.CalibrationInput{Source: in.Source, Columns: in.Columns, Notes: in.Notes})
+	cal, err := s.svc.PublishCalibration(c.Request().Context(), principal(c), toolID, in)
 	if err != nil {
 		return err
 	}
@@ -216,10 +168,7 @@ func (s *Server) publishCalibration(c echo.Context) error {
 }
 
 func (s *Server) listCalibrations(c echo.Context) error {
-	toolID, err := pathID(c)
-	if err != nil {
-		return err
-	}
+	toolID := pathID(c)
 	p, err := page(c)
 	if err != nil {
 		return err
@@ -228,21 +177,11 @@ func (s *Server) listCalibrations(c echo.Context) error {
 	if err != nil {
 		return err
 	}
-	out := listJSON[calibrationJSON]{Items: make([]calibrationJSON, 0, len(cs))}
-	for _, cal := range cs {
-		out.Items = append(out.Items, toCalibrationJSON(cal))
-	}
-	if len(cs) > 0 {
-		out.NextCursor = nextCursor(len(cs), p.Limit, cs[len(cs)-1].ID)
-	}
-	return c.JSON(http.StatusOK, out)
+	return writePage(c, cs, p, func(cal service.Calibration) uuid.UUID { return cal.ID }, toCalibrationJSON)
 }
 
 func (s *Server) getCalibration(c echo.Context) error {
-	id, err := pathID(c)
-	if err != nil {
-		return err
-	}
+	id := pathID(c)
 	cal, err := s.svc.GetCalibration(c.Request().Context(), principal(c), id)
 	if err != nil {
 		return err
@@ -251,11 +190,8 @@ func (s *Server) getCalibration(c echo.Context) error {
 }
 
 func (s *Server) getCalibrationChart(c echo.Context) error {
-	id, err := pathID(c)
-	if err != nil {
-		return err
-	}
-	var spec *service.SpokeSpec
+	id := pathID(c)
+	var spec *tension.SpokeSpec
 	num := func(name string) (float64, error) {
 		v := c.QueryParam(name)
 		if v == "" {
@@ -263,7 +199,7 @@ func (s *Server) getCalibrationChart(c echo.Context) error {
 		}
 		f, err := strconv.ParseFloat(v, 64)
 		if err != nil {
-			return 0, service.Invalid("query:"+name, "%s must be a number", name)
+			return 0, field.Invalid("query:"+name, "%s must be a number", name)
 		}
 		return f, nil
 	}
@@ -277,7 +213,7 @@ func (s *Server) getCalibrationChart(c echo.Context) error {
 		}
 	}
 	if d != 0 || w != 0 || t != 0 || c.QueryParam("profile") != "" {
-		spec = &service.SpokeSpec{Profile: c.QueryParam("profile"), DiameterMM: d, WidthMM: w, ThicknessMM: t,
+		spec = &tension.SpokeSpec{Profile: c.QueryParam("profile"), DiameterMM: d, WidthMM: w, ThicknessMM: t,
 			Material: c.QueryParam("material")}
 		if c.QueryParam("e_gpa") != "" {
 			spec.EGPa = &e
@@ -285,27 +221,35 @@ func (s *Server) getCalibrationChart(c echo.Context) error {
 			spec.Material = "stainless_steel"
 		}
 	}
-	svg, err := s.svc.CalibrationChart(c.Request().Context(), principal(c), id, spec)
+	cc, err := s.svc.CalibrationChart(c.Request().Context(), principal(c), id, spec)
 	if err != nil {
-		return err
+		return field.Map(err, queryPointer) // the section came as query parameters
 	}
+	svg := chart.SVG(cc.Chart, chart.Heading{ToolLabel: cc.Tool.Label, ToolSerial: cc.Tool.Serial,
+		CalibrationVersion: cc.Calibration.Version, Source: cc.Calibration.Source, Published: cc.Calibration.CreatedAt})
 	c.Response().Header().Set("Cache-Control", "private, max-age=86400")
 	return c.Blob(http.StatusOK, "image/svg+xml", svg)
 }
 
-// inlineCalibrationJSON is a calibration sent with a computation.
-type inlineCalibrationJSON struct {
-	Source  string                      `json:"source"`
-	Columns []service.CalibrationColumn `json:"columns"`
-	Tool    service.ToolFacts           `json:"tool"`
+// queryPointer names the chart's query parameter for a pointer into the
+// section it was given ("/spoke/width_mm" → "query:width_mm").
+func queryPointer(p string) string {
+	name := strings.TrimPrefix(strings.TrimPrefix(p, "/spoke"), "/")
+	if name == "" {
+		name = "diameter_mm"
+	}
+	return "query:" + name
 }
 
-func calibrationRef(id *uuid.UUID, inline *inlineCalibrationJSON) service.CalibrationRef {
-	ref := service.CalibrationRef{ID: id}
-	if inline != nil {
-		ref.Inline = &service.InlineCalibration{Source: inline.Source, Columns: inline.Columns, Tool: inline.Tool}
-	}
-	return ref
+// calibrationRefJSON names the calibration a computation uses: a stored
+// version by id, or one sent inline.
+type calibrationRefJSON struct {
+	CalibrationID *uuid.UUID                 `json:"calibration_id"`
+	Calibration   *service.InlineCalibration `json:"calibration"`
+}
+
+func (r calibrationRefJSON) ref() service.CalibrationRef {
+	return service.CalibrationRef{ID: r.CalibrationID, Inline: r.Calibration}
 }
 
 type calibrationUsedJSON struct {
@@ -322,13 +266,8 @@ func toCalibrationUsed(cal *service.Calibration) *calibrationUsedJSON {
 }
 
 type conversionJSON struct {
-	CalibrationID    *uuid.UUID             `json:"calibration_id"`
-	Calibration      *inlineCalibrationJSON `json:"calibration"`
-	Spoke            spoke.Spec             `json:"spoke"`
-	Readings         []float64              `json:"readings"`
-	TargetTensionN   *float64               `json:"target_tension_n"`
-	TargetTensionKgf *float64               `json:"target_tension_kgf"`
-	TargetTensionLbf *float64               `json:"target_tension_lbf"`
+	calibrationRefJSON        `json:",inline"`
+	tension.ConversionRequest `json:",inline"`
 }
 
 func (s *Server) convertTension(c echo.Context) error {
@@ -336,31 +275,19 @@ func (s *Server) convertTension(c echo.Context) error {
 	if err := decode(c, &in); err != nil {
 		return err
 	}
-	out, err := s.svc.ConvertTension(c.Request().Context(), principal(c), calibrationRef(in.CalibrationID, in.Calibration),
-		service.ConversionRequest{Spoke: in.Spoke, Readings: in.Readings, TargetTensionN: in.TargetTensionN,
-			TargetTensionKgf: in.TargetTensionKgf, TargetTensionLbf: in.TargetTensionLbf})
+	out, err := s.svc.ConvertTension(c.Request().Context(), principal(c), in.ref(), in.ConversionRequest)
 	if err != nil {
 		return err
 	}
 	return c.JSON(http.StatusOK, struct {
 		Calibration *calibrationUsedJSON `json:"calibration,omitempty"`
-		service.ConversionResponse
+		tension.ConversionResponse
 	}{toCalibrationUsed(out.Calibration), out.ConversionResponse})
 }
 
 type auditJSON struct {
-	CalibrationID           *uuid.UUID             `json:"calibration_id"`
-	Calibration             *inlineCalibrationJSON `json:"calibration"`
-	Spoke                   spoke.Spec             `json:"spoke"`
-	SpokeLeft               *spoke.Spec            `json:"spoke_left"`
-	SpokeRight              *spoke.Spec            `json:"spoke_right"`
-	Readings                []service.AuditReading `json:"readings"`
-	TargetTensionN          *float64               `json:"target_tension_n"`
-	TargetTensionKgf        *float64               `json:"target_tension_kgf"`
-	TargetTensionLbf        *float64               `json:"target_tension_lbf"`
-	TargetSide              string                 `json:"target_side"`
-	TolerancePct            *float64               `json:"tolerance_pct"`
-	GeometricLeftRightRatio *float64               `json:"geometric_left_right_ratio"`
+	calibrationRefJSON   `json:",inline"`
+	tension.AuditRequest `json:",inline"`
 }
 
 func (s *Server) auditTension(c echo.Context) error {
@@ -368,18 +295,15 @@ func (s *Server) auditTension(c echo.Context) error {
 	if err := decode(c, &in); err != nil {
 		return err
 	}
-	out, err := s.svc.AuditTension(c.Request().Context(), principal(c), calibrationRef(in.CalibrationID, in.Calibration),
-		service.AuditRequest{Spoke: in.Spoke, SpokeLeft: in.SpokeLeft, SpokeRight: in.SpokeRight, Readings: in.Readings,
-			TargetTensionN: in.TargetTensionN, TargetTensionKgf: in.TargetTensionKgf, TargetTensionLbf: in.TargetTensionLbf,
-			TargetSide: in.TargetSide, TolerancePct: in.TolerancePct, GeometricLeftRightRatio: in.GeometricLeftRightRatio})
+	out, err := s.svc.AuditTension(c.Request().Context(), principal(c), in.ref(), in.AuditRequest)
 	if err != nil {
 		return err
 	}
 	if out.Spokes == nil {
-		out.Spokes = []service.SpokeVerdict{}
+		out.Spokes = []tension.SpokeVerdict{}
 	}
 	return c.JSON(http.StatusOK, struct {
 		Calibration *calibrationUsedJSON `json:"calibration,omitempty"`
-		service.AuditResult
+		tension.AuditResult
 	}{toCalibrationUsed(out.Calibration), out.AuditResult})
 }

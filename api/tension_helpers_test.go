@@ -10,6 +10,7 @@ import (
 	"github.com/google/uuid"
 
 	"wheelbench/service"
+	"wheelbench/service/tension"
 )
 
 func init() {
@@ -25,14 +26,14 @@ func init() {
 // are generated from the tool model with these known parameters (the same
 // values as the tension package's own synthetic tool), so every expected
 // tension below is the tension a reading was generated at.
-var synthParams = service.ToolParams{SpanMM: 50, PreloadN: 120, SpringNPerMM: 15, ZeroMM: 2.0, StretchPerMM: 1.5e-3}
+var synthParams = tension.ToolParams{SpanMM: 50, PreloadN: 120, SpringNPerMM: 15, ZeroMM: 2.0, StretchPerMM: 1.5e-3}
 
-func steel(d float64) service.SpokeSpec {
-	return service.SpokeSpec{Profile: "round", DiameterMM: d, Material: "stainless_steel"}
+func steel(d float64) tension.SpokeSpec {
+	return tension.SpokeSpec{Profile: "round", DiameterMM: d, Material: "stainless_steel"}
 }
 
 // synthReading is the synthetic tool's exact reading (dial unit 0.01 mm).
-func (e *env) synthReading(spec service.SpokeSpec, tN float64) float64 {
+func (e *env) synthReading(spec tension.SpokeSpec, tN float64) float64 {
 	e.t.Helper()
 	r, err := synthParams.Reading(spec, 0.01, tN)
 	if err != nil {
@@ -44,13 +45,13 @@ func (e *env) synthReading(spec service.SpokeSpec, tN float64) float64 {
 // synthColumns is the synthetic tool's table for round steel spokes of the
 // given diameters × 400…1600 N in 100 N steps, readings rounded to whole
 // dial units as a printed table has them.
-func (e *env) synthColumns(ds ...float64) []service.CalibrationColumn {
+func (e *env) synthColumns(ds ...float64) []tension.Column {
 	e.t.Helper()
-	var cols []service.CalibrationColumn
+	var cols []tension.Column
 	for _, d := range ds {
-		col := service.CalibrationColumn{Spoke: steel(d)}
+		col := tension.Column{Spoke: steel(d)}
 		for tn := 400.0; tn <= 1600; tn += 100 {
-			col.Points = append(col.Points, service.CalibrationPoint{TensionN: tn, Reading: math.Round(e.synthReading(steel(d), tn))})
+			col.Points = append(col.Points, tension.Point{TensionN: tn, Reading: math.Round(e.synthReading(steel(d), tn))})
 		}
 		cols = append(cols, col)
 	}
@@ -95,7 +96,7 @@ type calibrationOut struct {
 }
 
 // publish publishes cols as tool's next calibration version.
-func (e *env) publish(tool uuid.UUID, cols []service.CalibrationColumn) calibrationOut {
+func (e *env) publish(tool uuid.UUID, cols []tension.Column) calibrationOut {
 	e.t.Helper()
 	var c calibrationOut
 	e.want(e.do("POST", "/v1/tools/"+tool.String()+"/calibrations", e.keyA[service.RoleWrite],

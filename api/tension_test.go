@@ -10,6 +10,7 @@ import (
 	"github.com/google/uuid"
 
 	"wheelbench/service"
+	"wheelbench/service/tension"
 )
 
 type resultOut struct {
@@ -646,7 +647,7 @@ func TestBuildAuditDiscFront(t *testing.T) {
 func TestConversionEdges(t *testing.T) {
 	e := newEnv(t)
 	cal := e.publish(e.newTool(), e.synthColumns(1.5, 1.8, 2.0, 2.3))
-	conv := func(spec service.SpokeSpec, truth float64) resultOut {
+	conv := func(spec tension.SpokeSpec, truth float64) resultOut {
 		out, _ := e.convert(map[string]any{"calibration_id": cal.ID, "spoke": spec, "readings": []float64{e.synthReading(spec, truth)}}, 200)
 		return out.Results[0]
 	}
@@ -659,7 +660,7 @@ func TestConversionEdges(t *testing.T) {
 	if g13.Reliable || !hasCode(g13.Warnings, "interval_widened_to_calibration") || share(g13) <= share(col) || len(g13.Cautions) < 2 {
 		t.Errorf("gauge 13 at 575 N: reliable %v, ±%.2f %% beside the column's ±%.2f %%, warnings %+v", g13.Reliable, 100*share(g13), 100*share(col), g13.Warnings)
 	}
-	blade := service.SpokeSpec{Profile: "bladed", WidthMM: 2.3, ThicknessMM: 1.3, Material: "stainless_steel"}
+	blade := tension.SpokeSpec{Profile: "bladed", WidthMM: 2.3, ThicknessMM: 1.3, Material: "stainless_steel"}
 	bl := conv(blade, 1000)
 	if !hasCode(bl.Warnings, "profile_not_in_calibration") || bl.Status != "extrapolated" || len(bl.Cautions) == 0 {
 		t.Errorf("bladed: status %s warnings %+v cautions %q", bl.Status, bl.Warnings, bl.Cautions)

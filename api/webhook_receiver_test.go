@@ -15,8 +15,8 @@ import (
 	"testing"
 	"time"
 
-	"wheelbench/api"
 	"wheelbench/service"
+	"wheelbench/service/background"
 	"wheelbench/service/webhook"
 )
 
@@ -150,11 +150,11 @@ func (rv *receiver) checkSignatures() {
 type loopbackSender struct {
 	t       *testing.T
 	allowed map[string]bool // scheme://host:port of receivers started by the test
-	inner   *api.WebhookSender
+	inner   *background.HTTPSender
 }
 
 func newLoopbackSender(t *testing.T, rvs ...*receiver) *loopbackSender {
-	s := &loopbackSender{t: t, allowed: map[string]bool{}, inner: api.NewWebhookSender(true, 2*time.Second)}
+	s := &loopbackSender{t: t, allowed: map[string]bool{}, inner: background.NewHTTPSender(true, 2*time.Second)}
 	for _, rv := range rvs {
 		s.allowed[rv.srv.URL] = true
 	}
@@ -173,19 +173,19 @@ func (s *loopbackSender) Send(ctx context.Context, raw string, h webhook.HeaderS
 // outcomes counts a dispatcher's recorded outcomes.
 type outcomes struct {
 	mu sync.Mutex
-	n  map[service.DeliveryOutcome]int
+	n  map[background.Outcome]int
 }
 
-func (o *outcomes) WebhookOutcome(x service.DeliveryOutcome) {
+func (o *outcomes) WebhookOutcome(x background.Outcome) {
 	o.mu.Lock()
 	defer o.mu.Unlock()
 	if o.n == nil {
-		o.n = map[service.DeliveryOutcome]int{}
+		o.n = map[background.Outcome]int{}
 	}
 	o.n[x]++
 }
 
-func (o *outcomes) get(x service.DeliveryOutcome) int {
+func (o *outcomes) get(x background.Outcome) int {
 	o.mu.Lock()
 	defer o.mu.Unlock()
 	return o.n[x]

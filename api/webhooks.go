@@ -45,29 +45,15 @@ func (s *Server) listWebhookEndpoints(c echo.Context) error {
 	if err != nil {
 		return err
 	}
-	out := listJSON[webhookEndpointJSON]{Items: make([]webhookEndpointJSON, 0, len(es))}
-	for _, e := range es {
-		out.Items = append(out.Items, toWebhookEndpointJSON(e))
-	}
-	if len(es) > 0 {
-		out.NextCursor = nextCursor(len(es), p.Limit, es[len(es)-1].ID)
-	}
-	return c.JSON(http.StatusOK, out)
-}
-
-type webhookEndpointCreateJSON struct {
-	URL         string   `json:"url"`
-	Events      []string `json:"events"`
-	Active      *bool    `json:"active"`
-	Description string   `json:"description"`
+	return writePage(c, es, p, func(e service.WebhookEndpoint) uuid.UUID { return e.ID }, toWebhookEndpointJSON)
 }
 
 func (s *Server) createWebhookEndpoint(c echo.Context) error {
-	var in webhookEndpointCreateJSON
+	var in service.WebhookEndpointInput
 	if err := decode(c, &in); err != nil {
 		return err
 	}
-	e, err := s.svc.CreateWebhookEndpoint(c.Request().Context(), principal(c), service.WebhookEndpointInput(in))
+	e, err := s.svc.CreateWebhookEndpoint(c.Request().Context(), principal(c), in)
 	if err != nil {
 		return err
 	}
@@ -78,10 +64,7 @@ func (s *Server) createWebhookEndpoint(c echo.Context) error {
 }
 
 func (s *Server) getWebhookEndpoint(c echo.Context) error {
-	id, err := pathID(c)
-	if err != nil {
-		return err
-	}
+	id := pathID(c)
 	e, err := s.svc.GetWebhookEndpoint(c.Request().Context(), principal(c), id)
 	if err != nil {
 		return err
@@ -90,24 +73,13 @@ func (s *Server) getWebhookEndpoint(c echo.Context) error {
 	return c.JSON(http.StatusOK, toWebhookEndpointJSON(e))
 }
 
-type webhookEndpointPatchJSON struct {
-	URL         *string  `json:"url"`
-	Events      []string `json:"events"`
-	Active      *bool    `json:"active"`
-	Description *string  `json:"description"`
-}
-
 func (s *Server) updateWebhookEndpoint(c echo.Context) error {
-	id, err := pathID(c)
-	if err != nil {
-		return err
-	}
-	var in webhookEndpointPatchJSON
+	id := pathID(c)
+	var in service.WebhookEndpointPatch
 	if err := decode(c, &in); err != nil {
 		return err
 	}
-	e, err := s.svc.UpdateWebhookEndpoint(c.Request().Context(), principal(c), id, c.Request().Header.Get("If-Match"),
-		service.WebhookEndpointPatch(in))
+	e, err := s.svc.UpdateWebhookEndpoint(c.Request().Context(), principal(c), id, c.Request().Header.Get("If-Match"), in)
 	if err != nil {
 		return err
 	}
@@ -116,10 +88,7 @@ func (s *Server) updateWebhookEndpoint(c echo.Context) error {
 }
 
 func (s *Server) deleteWebhookEndpoint(c echo.Context) error {
-	id, err := pathID(c)
-	if err != nil {
-		return err
-	}
+	id := pathID(c)
 	if err := s.svc.DeleteWebhookEndpoint(c.Request().Context(), principal(c), id); err != nil {
 		return err
 	}

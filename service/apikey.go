@@ -14,6 +14,8 @@ import (
 	"time"
 
 	"github.com/google/uuid"
+
+	"wheelbench/service/field"
 )
 
 // Key format: "wbk_" + 10 lower-case base32 characters (the display prefix,
@@ -25,9 +27,9 @@ var prefixEncoding = base32.StdEncoding.WithPadding(base32.NoPadding)
 
 // NewKeyInput is what creating a key takes.
 type NewKeyInput struct {
-	Name       string
-	Role       Role
-	LocationID *uuid.UUID
+	Name       string     `json:"name"`
+	Role       Role       `json:"role"`
+	LocationID *uuid.UUID `json:"location_id"`
 }
 
 // CreatedKey is a new key with its secret, shown once.
@@ -73,15 +75,15 @@ func splitKey(secret string) (string, bool) {
 // the admin command calls it directly.
 func (s *Service) CreateAPIKey(ctx context.Context, orgID uuid.UUID, in NewKeyInput) (CreatedKey, error) {
 	if !in.Role.Valid() {
-		return CreatedKey{}, fmt.Errorf("%w", Invalid("/role", "role must be read, write or admin"))
+		return CreatedKey{}, fmt.Errorf("%w", field.Invalid("/role", "role must be read, write or admin"))
 	}
 	if len(in.Name) > 200 {
-		return CreatedKey{}, Invalid("/name", "name must be at most 200 characters")
+		return CreatedKey{}, field.Invalid("/name", "name must be at most 200 characters")
 	}
 	if in.LocationID != nil {
 		if _, err := s.store.GetLocation(ctx, orgID, *in.LocationID); err != nil {
 			if errors.Is(err, ErrNotFound) {
-				return CreatedKey{}, Unprocessable("/location_id", "no such location in this organisation")
+				return CreatedKey{}, field.Unprocessable("/location_id", "no such location in this organisation")
 			}
 			return CreatedKey{}, err
 		}

@@ -8,6 +8,9 @@ import (
 	"unicode/utf8"
 
 	"github.com/google/uuid"
+
+	"wheelbench/service/field"
+	"wheelbench/service/tension"
 )
 
 // BuildTensionAudit is a stored tension audit of a built wheel: the
@@ -15,24 +18,24 @@ import (
 // converted tensions and the verdict. Kept for warranty: never edited; a
 // later audit of the same build supersedes it.
 type BuildTensionAudit struct {
-	ID            uuid.UUID      `json:"id"`
-	OrgID         uuid.UUID      `json:"-"`
-	BuildID       uuid.UUID      `json:"build_id"`
-	ToolID        uuid.UUID      `json:"tool_id"`
-	CalibrationID uuid.UUID      `json:"calibration_id"`
-	Readings      []AuditReading `json:"readings"`
-	Result        AuditResult    `json:"result"`
-	Notes         string         `json:"notes"`
-	SupersededBy  *uuid.UUID     `json:"superseded_by,omitempty"`
-	CreatedAt     time.Time      `json:"created_at"`
+	ID            uuid.UUID              `json:"id"`
+	OrgID         uuid.UUID              `json:"-"`
+	BuildID       uuid.UUID              `json:"build_id"`
+	ToolID        uuid.UUID              `json:"tool_id"`
+	CalibrationID uuid.UUID              `json:"calibration_id"`
+	Readings      []tension.AuditReading `json:"readings"`
+	Result        tension.AuditResult    `json:"result"`
+	Notes         string                 `json:"notes"`
+	SupersededBy  *uuid.UUID             `json:"superseded_by,omitempty"`
+	CreatedAt     time.Time              `json:"created_at"`
 }
 
 // BuildAuditInput records an audit of a build.
 type BuildAuditInput struct {
-	CalibrationID uuid.UUID
-	Readings      []AuditReading
-	TolerancePct  *float64
-	Notes         string
+	CalibrationID uuid.UUID              `json:"calibration_id"`
+	Readings      []tension.AuditReading `json:"readings"`
+	TolerancePct  *float64               `json:"tolerance_pct"`
+	Notes         string                 `json:"notes"`
 }
 
 // RecordBuildAudit converts the readings with a stored calibration version,
@@ -40,7 +43,7 @@ type BuildAuditInput struct {
 // ratio, and keeps the result with the build, superseding its last audit.
 func (s *Service) RecordBuildAudit(ctx context.Context, p Principal, buildID uuid.UUID, in BuildAuditInput) (BuildTensionAudit, error) {
 	if utf8.RuneCountInString(in.Notes) > 10000 {
-		return BuildTensionAudit{}, Invalid("/notes", "notes must be at most 10000 characters")
+		return BuildTensionAudit{}, field.Invalid("/notes", "notes must be at most 10000 characters")
 	}
 	b, err := s.reachableBuild(ctx, p, buildID)
 	if err != nil {
@@ -48,13 +51,13 @@ func (s *Service) RecordBuildAudit(ctx context.Context, p Principal, buildID uui
 	}
 	cal, err := s.store.GetCalibration(ctx, p.OrgID, in.CalibrationID)
 	if errors.Is(err, ErrNotFound) {
-		return BuildTensionAudit{}, Unprocessable("/calibration_id", "no such calibration in this organisation")
+		return BuildTensionAudit{}, field.Unprocessable("/calibration_id", "no such calibration in this organisation")
 	}
 	if err != nil {
 		return BuildTensionAudit{}, err
 	}
 	if cal.Model == nil {
-		return BuildTensionAudit{}, Unprocessable("/calibration_id", "the calibration has no fitted model")
+		return BuildTensionAudit{}, field.Unprocessable("/calibration_id", "the calibration has no fitted model")
 	}
 	res := b.Snapshot.Resolved
 	// The same rule as POST /v1/tension-audits: the target is the tighter
@@ -62,7 +65,7 @@ func (s *Service) RecordBuildAudit(ctx context.Context, p Principal, buildID uui
 	// geometry, else from its two target tensions) decides which side that
 	// is and aims the other; no target_side is sent.
 	t := b.Snapshot.TargetTensionsN
-	req := AuditRequest{Spoke: res.Spoke, Readings: in.Readings, TolerancePct: in.TolerancePct}
+	req := tension.AuditRequest{Spoke: res.Spoke, Readings: in.Readings, TolerancePct: in.TolerancePct}
 	if target := max(t.Left, t.Right); target > 0 {
 		req.TargetTensionN = &target
 	}

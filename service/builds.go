@@ -2,19 +2,18 @@ package service
 
 import (
 	"context"
-	"encoding/json"
 	"errors"
 	"fmt"
-	"strings"
 	"time"
 	"unicode/utf8"
 
 	"github.com/google/uuid"
 
+	"wheelbench/service/field"
 	"wheelbench/service/fit"
 	"wheelbench/service/geometry"
 	"wheelbench/service/spoke"
-	"wheelbench/strictjson"
+	"wheelbench/service/tension"
 )
 
 // BuildStatus is where a build is in the shop.
@@ -50,24 +49,20 @@ func (s BuildStatus) CanMoveTo(t BuildStatus) bool {
 	return nextStatus[s] == t
 }
 
-// Build is one wheel job: the spec as sent, and the snapshot computed from
+// Build is one wheel job: the spec as given, and the snapshot computed from
 // it when the build was created (kept for warranty, never recomputed).
 type Build struct {
-	ID          uuid.UUID       `json:"id"`
-	OrgID       uuid.UUID       `json:"-"`
-	LocationID  uuid.UUID       `json:"location_id"`
-	ExternalRef string          `json:"external_ref"`
-	Status      BuildStatus     `json:"status"`
-	Spec        json.RawMessage `json:"spec"`
-	Snapshot    BuildSnapshot   `json:"snapshot"`
-	// SnapshotJSON, when set (CreateBuild sets it), is json.Marshal of
-	// Snapshot, so that the store and the response use those bytes rather
-	// than encode the snapshot again.
-	SnapshotJSON json.RawMessage `json:"-"`
-	Notes        string          `json:"notes"`
-	Version      int64           `json:"-"`
-	CreatedAt    time.Time       `json:"created_at"`
-	UpdatedAt    time.Time       `json:"updated_at"`
+	ID          uuid.UUID     `json:"id"`
+	OrgID       uuid.UUID     `json:"-"`
+	LocationID  uuid.UUID     `json:"location_id"`
+	ExternalRef string        `json:"external_ref"`
+	Status      BuildStatus   `json:"status"`
+	Spec        BuildSpec     `json:"spec"`
+	Snapshot    BuildSnapshot `json:"snapshot"`
+	Notes       string        `json:"notes"`
+	Version     int64         `json:"-"`
+	CreatedAt   time.Time     `json:"created_at"`
+	UpdatedAt   time.Time     `json:"updated_at"`
 }
 
 // ETag is the build's entity tag.
@@ -104,8 +99,17 @@ type TargetReadings struct {
 	CalibrationID uuid.UUID `json:"calibration_id"`
 	// MeasuredSection is the section of the spoke the readings are for.
 	MeasuredSection MeasuredSection `json:"measured_section"`
-	Left            json.RawMessage `json:"left"`
-	Right           json.RawMessage `json:"right"`
+	Left            Aim             `json:"left"`
+	Right           Aim             `json:"right"`
+}
+
+// Aim is one side's reading to aim for: the conversion of the side's target
+// tension (Target), or the reason the calibration refused it (Refused).
+// Its members are the Target's, or refused alone: the embedded pointer's
+// members are left out while it is nil.
+type Aim struct {
+	*tension.Target
+	Refused string `json:"refused,omitempty"`
 }
 
 // BuildParts are the catalog part ids a build uses (nil: given inline).
@@ -118,10 +122,9 @@ type BuildParts struct {
 	Washers []uuid.UUID `json:"washers,omitempty"`
 }
 
-// BuildSpec is a build's spec: the compatibility-check body in which each
+// BuildSpec is a build's spec: the compatibility check's input in which each
 // part may instead be named by a catalog id (hub_id, rim_id, spoke_id,
-// nipple_id, tyre_id, washer_ids). Inline parts decode straight into their
-// fit types, so a spec is decoded once; null counts as absent.
+// nipple_id, tyre_id, washer_ids); nil is absent.
 type BuildSpec struct {
 	SpokeCount     int             `json:"spoke_count"`
 	Hub            *geometry.Hub   `json:"hub,omitempty"`
@@ -144,15 +147,15 @@ type BuildSpec struct {
 
 // BuildInput creates a build.
 type BuildInput struct {
-	Spec        json.RawMessage
-	ExternalRef string
-	LocationID  uuid.UUID
+	Spec        BuildSpec `json:"spec"`
+	ExternalRef string    `json:"external_ref"`
+	LocationID  uuid.UUID `json:"location_id"`
 }
 
 // BuildPatch changes a build's status or notes.
 type BuildPatch struct {
-	Status *BuildStatus
-	Notes  *string
+	Status *BuildStatus `json:"status"`
+	Notes  *string      `json:"notes"`
 }
 
 // BuildFilter narrows a build list.
@@ -163,51 +166,26 @@ type BuildFilter struct {
 	UpdatedAfter *time.Time
 }
 
-// prefixPointers moves every field error's pointer under prefix.
-func prefixPointers(err error, prefix string) error {
-	var out []error
-	var walk func(e error)
-	walk = func(e error) {
-		if fe, ok := e.(interface {
-			error
-			FieldPointer() string
-			IsUnprocessable() bool
-		}); ok {
-			out = append(out, &FieldError{Pointer: prefix + fe.FieldPointer(), Message: strings.TrimPrefix(fe.Error(), fe.FieldPointer()+": "), Unprocessable: fe.IsUnprocessable()})
-			return
-		}
-		if u, ok := e.(interface{ Unwrap() []error }); ok {
-			for _, x := range u.Unwrap() {
-				walk(x)
-			}
-			return
-		}
-		out = append(out, e)
-	}
-	walk(err)
-	return errors.Join(out...)
-}
-
 // resolvePart returns the part named inline or by id (nil when neither),
 // with the catalog id when it came from the catalog.
-func resolvePart[T any](ctx context.Context, s *Service, orgID uuid.UUID, kind PartKind, inline *T, id *uuid.UUID, field string) (*T, *uuid.UUID, error) {
+func resolvePart[T any](ctx context.Context, s *Service, orgID uuid.UUID, kind PartKind, inline *T, id *uuid.UUID, member string) (*T, *uuid.UUID, error) {
 	switch {
 	case inline != nil && id != nil:
-		return nil, nil, Invalid("/spec/"+field+"_id", "give %s inline or as %s_id, not both", field, field)
+		return nil, nil, field.Invalid("/spec/"+member+"_id", "give %s inline or as %s_id, not both", member, member)
 	case id != nil:
 		p, err := s.store.GetPart(ctx, orgID, *id)
 		if errors.Is(err, ErrNotFound) {
-			return nil, nil, Unprocessable("/spec/"+field+"_id", "no such part in this organisation's catalog")
+			return nil, nil, field.Unprocessable("/spec/"+member+"_id", "no such part in this organisation's catalog")
 		}
 		if err != nil {
 			return nil, nil, err
 		}
 		if p.Kind != kind {
-			return nil, nil, Unprocessable("/spec/"+field+"_id", "part %s is a %s, not a %s", id, p.Kind, kind)
+			return nil, nil, field.Unprocessable("/spec/"+member+"_id", "part %s is a %s, not a %s", id, p.Kind, kind)
 		}
-		dims := new(T)
-		if err := strictjson.Unmarshal(p.Dimensions, dims); err != nil {
-			return nil, nil, Unprocessable("/spec/"+field+"_id", "part %s's dimensions do not describe a %s", id, kind)
+		dims, ok := p.Dimensions.(*T)
+		if !ok || dims == nil {
+			return nil, nil, field.Unprocessable("/spec/"+member+"_id", "part %s's dimensions do not describe a %s", id, kind)
 		}
 		return dims, id, nil
 	}
@@ -217,26 +195,22 @@ func resolvePart[T any](ctx context.Context, s *Service, orgID uuid.UUID, kind P
 // specPart is resolvePart for one of a spec's parts: it records the
 // catalog id in *catalogID and any error, or the part's absence when it is
 // required, in *errs.
-func specPart[T any](ctx context.Context, s *Service, orgID uuid.UUID, kind PartKind, inline *T, id *uuid.UUID, field string,
+func specPart[T any](ctx context.Context, s *Service, orgID uuid.UUID, kind PartKind, inline *T, id *uuid.UUID, member string,
 	required bool, catalogID **uuid.UUID, errs *[]error) *T {
-	v, cid, err := resolvePart(ctx, s, orgID, kind, inline, id, field)
+	v, cid, err := resolvePart(ctx, s, orgID, kind, inline, id, member)
 	*catalogID = cid
 	switch {
 	case err != nil:
 		*errs = append(*errs, err)
 	case v == nil && required:
-		*errs = append(*errs, Invalid("/spec/"+field, "give the %s inline or as %s_id", field, field))
+		*errs = append(*errs, field.Invalid("/spec/"+member, "give the %s inline or as %s_id", member, member))
 	}
 	return v
 }
 
 // resolveSpec turns a build spec into a compatibility input, reading the
 // catalog parts it names.
-func (s *Service) resolveSpec(ctx context.Context, orgID, locationID uuid.UUID, raw json.RawMessage) (CompatibilityInput, BuildParts, string, error) {
-	var spec BuildSpec
-	if err := strictjson.Unmarshal(raw, &spec); err != nil {
-		return CompatibilityInput{}, BuildParts{}, "", prefixPointers(err, "/spec")
-	}
+func (s *Service) resolveSpec(ctx context.Context, orgID, locationID uuid.UUID, spec BuildSpec) (CompatibilityInput, BuildParts, string, error) {
 	var parts BuildParts
 	var errs []error
 	hub := specPart(ctx, s, orgID, PartHub, spec.Hub, spec.HubID, "hub", true, &parts.Hub, &errs)
@@ -250,15 +224,12 @@ func (s *Service) resolveSpec(ctx context.Context, orgID, locationID uuid.UUID, 
 	}
 	if len(spec.WasherIDs) > 0 {
 		if spec.Washers != nil {
-			errs = append(errs, Invalid("/spec/washer_ids", "give washers inline or as washer_ids, not both"))
+			errs = append(errs, field.Invalid("/spec/washer_ids", "give washers inline or as washer_ids, not both"))
 		}
 		washers = make([]fit.Washer, 0, len(spec.WasherIDs))
 		for i, id := range spec.WasherIDs {
 			w, _, err := resolvePart[fit.Washer](ctx, s, orgID, PartWasher, nil, &id, "washer")
-			var fe *FieldError
-			if errors.As(err, &fe) {
-				fe.Pointer = fmt.Sprintf("/spec/washer_ids/%d", i)
-			}
+			err = field.Map(err, func(string) string { return fmt.Sprintf("/spec/washer_ids/%d", i) })
 			if err != nil {
 				errs = append(errs, err)
 				continue
@@ -299,13 +270,13 @@ func (s *Service) resolveSpec(ctx context.Context, orgID, locationID uuid.UUID, 
 // stores it as a draft.
 func (s *Service) CreateBuild(ctx context.Context, p Principal, in BuildInput) (Build, error) {
 	if utf8.RuneCountInString(in.ExternalRef) > 200 {
-		return Build{}, Invalid("/external_ref", "external_ref must be at most 200 characters")
+		return Build{}, field.Invalid("/external_ref", "external_ref must be at most 200 characters")
 	}
 	// An org-scoped read, so that a location of another organisation is a
 	// 422 naming the field; the database's foreign key holds it as well.
 	_, cal, err := s.locationWithCalibration(ctx, p.OrgID, in.LocationID)
 	if errors.Is(err, ErrNotFound) || (err == nil && !p.Reaches(in.LocationID)) {
-		return Build{}, Unprocessable("/location_id", "no such location in this organisation")
+		return Build{}, field.Unprocessable("/location_id", "no such location in this organisation")
 	} else if err != nil {
 		return Build{}, err
 	}
@@ -315,7 +286,7 @@ func (s *Service) CreateBuild(ctx context.Context, p Principal, in BuildInput) (
 	}
 	rep, err := s.CheckCompatibility(resolved)
 	if err != nil {
-		return Build{}, prefixPointers(err, "/spec")
+		return Build{}, field.Under("/spec", err)
 	}
 	if proposesStandardWasher(rep) {
 		// A washer to buy is proposed: the catalog's own is proposed
@@ -325,7 +296,7 @@ func (s *Service) CreateBuild(ctx context.Context, p Principal, in BuildInput) (
 		}
 		if len(resolved.CatalogWashers) > 0 {
 			if rep, err = s.CheckCompatibility(resolved); err != nil {
-				return Build{}, prefixPointers(err, "/spec")
+				return Build{}, field.Under("/spec", err)
 			}
 		}
 	}
@@ -338,13 +309,9 @@ func (s *Service) CreateBuild(ctx context.Context, p Principal, in BuildInput) (
 	if snap.Cautions == nil {
 		snap.Cautions = []string{}
 	}
-	snapJSON, err := json.Marshal(snap)
-	if err != nil {
-		return Build{}, err
-	}
 	now := s.now().UTC()
 	b := Build{ID: uuid.Must(uuid.NewV7()), OrgID: p.OrgID, LocationID: in.LocationID, ExternalRef: in.ExternalRef,
-		Status: BuildDraft, Spec: in.Spec, Snapshot: snap, SnapshotJSON: snapJSON, Version: 1, CreatedAt: now, UpdatedAt: now}
+		Status: BuildDraft, Spec: in.Spec, Snapshot: snap, Version: 1, CreatedAt: now, UpdatedAt: now}
 	if err := s.store.CreateBuild(ctx, b); err != nil {
 		return Build{}, err
 	}
@@ -377,16 +344,15 @@ func targetReadings(cal *Calibration, in CompatibilityInput, t Sides) (*TargetRe
 	for _, side := range []struct {
 		name string
 		n    float64
-		dst  *json.RawMessage
+		dst  *Aim
 	}{{"left", t.Left, &out.Left}, {"right", t.Right, &out.Right}} {
 		tg, err := cal.Model.TargetForSpoke(in.Spoke, side.n)
 		if err != nil {
-			msg := strings.TrimPrefix(err.Error(), "json: ")
-			*side.dst, _ = json.Marshal(map[string]string{"refused": msg})
-			cautions = append(cautions, fmt.Sprintf("The %s side's target reading could not be computed from the location's tensiometer calibration (%s); calibrate the tool for this spoke before tensioning.", side.name, msg))
+			side.dst.Refused = err.Error()
+			cautions = append(cautions, fmt.Sprintf("The %s side's target reading could not be computed from the location's tensiometer calibration (%s); calibrate the tool for this spoke before tensioning.", side.name, err.Error()))
 			continue
 		}
-		*side.dst, _ = json.Marshal(tg)
+		side.dst.Target = &tg
 		cautions = append(cautions, tg.Cautions...)
 	}
 	return out, cautions
@@ -415,11 +381,9 @@ func (s *Service) catalogWashers(ctx context.Context, orgID uuid.UUID) ([]fit.Ca
 	}
 	out := make([]fit.CatalogWasher, 0, len(ps))
 	for _, p := range ps {
-		var w fit.Washer
-		if err := strictjson.Unmarshal(p.Dimensions, &w); err != nil {
-			continue // a part whose dimensions no longer decode is not proposed
+		if w, ok := p.Dimensions.(*fit.Washer); ok && w != nil {
+			out = append(out, fit.CatalogWasher{Washer: *w, PartID: p.ID.String()})
 		}
-		out = append(out, fit.CatalogWasher{Washer: w, PartID: p.ID.String()})
 	}
 	return out, nil
 }
@@ -462,7 +426,7 @@ func (s *Service) reachableBuild(ctx context.Context, p Principal, id uuid.UUID)
 // lists that location's.
 func (s *Service) ListBuilds(ctx context.Context, p Principal, f BuildFilter, page Page) ([]Build, error) {
 	if f.Status != "" && !f.Status.Valid() {
-		return nil, Invalid("query:status", "status must be one of draft, quoted, ordered, in_progress, done, cancelled")
+		return nil, field.Invalid("query:status", "status must be one of draft, quoted, ordered, in_progress, done, cancelled")
 	}
 	if p.Bound() {
 		if f.LocationID != nil && *f.LocationID != *p.LocationID {
@@ -477,10 +441,10 @@ func (s *Service) ListBuilds(ctx context.Context, p Principal, f BuildFilter, pa
 // its notes, if ifMatch is its current ETag. An illegal move is ErrConflict.
 func (s *Service) UpdateBuild(ctx context.Context, p Principal, id uuid.UUID, ifMatch string, patch BuildPatch) (Build, error) {
 	if patch.Status != nil && !patch.Status.Valid() {
-		return Build{}, Invalid("/status", "status must be one of draft, quoted, ordered, in_progress, done, cancelled")
+		return Build{}, field.Invalid("/status", "status must be one of draft, quoted, ordered, in_progress, done, cancelled")
 	}
 	if patch.Notes != nil && utf8.RuneCountInString(*patch.Notes) > 10000 {
-		return Build{}, Invalid("/notes", "notes must be at most 10000 characters")
+		return Build{}, field.Invalid("/notes", "notes must be at most 10000 characters")
 	}
 	cur, err := s.reachableBuild(ctx, p, id)
 	if err != nil {

@@ -9,6 +9,8 @@ import (
 	"time"
 
 	"github.com/google/uuid"
+
+	"wheelbench/service/field"
 )
 
 // Change is one entry of an organisation's change feed, written in the same
@@ -50,7 +52,7 @@ func ParseCursor(s string) (Cursor, error) {
 	if s == "" {
 		return Cursor{}, nil
 	}
-	bad := Invalid("query:after", "after must be a next_cursor this API returned")
+	bad := field.Invalid("query:after", "after must be a next_cursor this API returned")
 	b, err := base64.RawURLEncoding.DecodeString(s)
 	if err != nil {
 		return Cursor{}, bad
@@ -92,7 +94,7 @@ func (s *Service) ListChanges(ctx context.Context, p Principal, q ChangeQuery) (
 			known = known || r == k
 		}
 		if !known {
-			return nil, q.After, Invalid("query:types", "types[%d] %q is not one of %s", i, r, strings.Join(ChangeResources, ", "))
+			return nil, q.After, field.Invalid("query:types", "types[%d] %q is not one of %s", i, r, strings.Join(ChangeResources, ", "))
 		}
 	}
 	if q.Limit <= 0 {

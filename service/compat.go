@@ -1,9 +1,6 @@
 package service
 
-import (
-	"wheelbench/service/fit"
-	"wheelbench/service/geometry"
-)
+import "wheelbench/service/fit"
 
 // CompatibilityInput is the body of a compatibility check: the parts as
 // measured (the hub, rim, crosses and spoke described as for spoke lengths)
@@ -20,23 +17,3 @@ type CompatibilityReport = fit.Report
 func (s *Service) CheckCompatibility(in CompatibilityInput) (CompatibilityReport, error) {
 	return fit.Check(in, fit.DefaultOptions())
 }
-
-// SpokeLengthResult answers POST /v1/spoke-lengths: the geometry and the
-// rule set's findings and cautions on it.
-type SpokeLengthResult struct {
-	geometry.Result `json:",inline"`
-	// Findings are never nil (an empty list encodes as []).
-	Findings []fit.Finding `json:"findings"`
-	// Cautions are plain sentences about results that can hurt a rider when
-	// wrong; never nil.
-	Cautions []string `json:"cautions"`
-}
-
-// fieldError is what the pure packages' field errors offer.
-type fieldError interface {
-	error
-	FieldPointer() string
-	IsUnprocessable() bool
-}
-
-func ptr(x float64) *float64 { return &x }

@@ -6,6 +6,8 @@ import (
 	"strings"
 	"time"
 	"unicode/utf8"
+
+	"wheelbench/service/field"
 )
 
 // IdempotencyTTL is how long a key's first response is kept for replay.
@@ -37,7 +39,7 @@ var (
 // characters.
 func ValidateIdempotencyKey(k string) error {
 	if k == "" || len(k) > 255 || !utf8.ValidString(k) || strings.IndexFunc(k, func(r rune) bool { return r < 0x21 || r > 0x7e }) >= 0 {
-		return Invalid("header:Idempotency-Key", "must be 1 to 255 printable ASCII characters without spaces")
+		return field.Invalid("header:Idempotency-Key", "must be 1 to 255 printable ASCII characters without spaces")
 	}
 	return nil
 }

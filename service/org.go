@@ -10,13 +10,15 @@ import (
 	"unicode/utf8"
 
 	"github.com/google/uuid"
+
+	"wheelbench/service/field"
 )
 
 // CreateOrganisation creates a tenant and its first admin key.
 func (s *Service) CreateOrganisation(ctx context.Context, name string) (Organisation, CreatedKey, error) {
 	name = strings.TrimSpace(name)
 	if name == "" || utf8.RuneCountInString(name) > 200 {
-		return Organisation{}, CreatedKey{}, Invalid("/name", "name must be 1 to 200 characters")
+		return Organisation{}, CreatedKey{}, field.Invalid("/name", "name must be 1 to 200 characters")
 	}
 	id, err := uuid.NewV7()
 	if err != nil {
@@ -75,34 +77,34 @@ func (s *Service) WhoAmI(ctx context.Context, p Principal) (Me, error) {
 
 // LocationInput is what creating a location takes.
 type LocationInput struct {
-	ID         uuid.UUID // optional: zero means a new id
-	Name       string
-	Code       string
-	Timezone   string
-	Address    string
-	TaxRatePPM int64
+	ID         uuid.UUID `json:"-"` // optional: zero means a new id
+	Name       string    `json:"name"`
+	Code       string    `json:"code"`
+	Timezone   string    `json:"timezone"`
+	Address    string    `json:"address"`
+	TaxRatePPM int64     `json:"tax_rate_ppm"`
 }
 
 func validateLocationFields(name, code, tz, address *string, taxPPM *int64) error {
 	var errs []error
 	if taxPPM != nil && (*taxPPM < 0 || *taxPPM > 1_000_000) {
-		errs = append(errs, Invalid("/tax_rate_ppm", "tax_rate_ppm must be from 0 to 1000000 (parts per million)"))
+		errs = append(errs, field.Invalid("/tax_rate_ppm", "tax_rate_ppm must be from 0 to 1000000 (parts per million)"))
 	}
 	if name != nil {
 		if n := strings.TrimSpace(*name); n == "" || utf8.RuneCountInString(n) > 200 {
-			errs = append(errs, Invalid("/name", "name must be 1 to 200 characters"))
+			errs = append(errs, field.Invalid("/name", "name must be 1 to 200 characters"))
 		}
 	}
 	if code != nil && utf8.RuneCountInString(*code) > 32 {
-		errs = append(errs, Invalid("/code", "code must be at most 32 characters"))
+		errs = append(errs, field.Invalid("/code", "code must be at most 32 characters"))
 	}
 	if tz != nil && *tz != "" {
 		if _, err := time.LoadLocation(*tz); err != nil || *tz == "Local" {
-			errs = append(errs, Invalid("/timezone", "timezone must be an IANA time zone name (Area/Location, Etc/GMT-2 or UTC)"))
+			errs = append(errs, field.Invalid("/timezone", "timezone must be an IANA time zone name (Area/Location, Etc/GMT-2 or UTC)"))
 		}
 	}
 	if address != nil && utf8.RuneCountInString(*address) > 1000 {
-		errs = append(errs, Invalid("/address", "address must be at most 1000 characters"))
+		errs = append(errs, field.Invalid("/address", "address must be at most 1000 characters"))
 	}
 	return errors.Join(errs...)
 }

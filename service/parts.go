@@ -1,9 +1,7 @@
 package service
 
 import (
-	"bytes"
 	"context"
-	"encoding/json"
 	"errors"
 	"fmt"
 	"math"
@@ -14,10 +12,10 @@ import (
 
 	"github.com/google/uuid"
 
+	"wheelbench/service/field"
 	"wheelbench/service/fit"
 	"wheelbench/service/geometry"
 	"wheelbench/service/spoke"
-	"wheelbench/strictjson"
 )
 
 // PartKind is what a catalog part is.
@@ -42,43 +40,88 @@ func (k PartKind) Valid() bool {
 	return false
 }
 
-// Part is a catalog entry with its measured dimensions: for each kind the
-// JSON object the compatibility check takes in its place (a hub's is the
-// check's "hub" object, and so on).
+// Part is a catalog entry with its measured dimensions: for each kind what
+// the compatibility check takes in its place (see PartKind.NewDimensions).
 type Part struct {
-	ID         uuid.UUID       `json:"id"`
-	OrgID      uuid.UUID       `json:"-"`
-	Kind       PartKind        `json:"kind"`
-	SKU        string          `json:"sku"`
-	Name       string          `json:"name"`
-	PriceMinor int64           `json:"price_minor"`
-	Currency   string          `json:"currency"`
-	Dimensions json.RawMessage `json:"dimensions"`
-	Version    int64           `json:"-"`
-	CreatedAt  time.Time       `json:"created_at"`
-	UpdatedAt  time.Time       `json:"updated_at"`
+	ID         uuid.UUID `json:"id"`
+	OrgID      uuid.UUID `json:"-"`
+	Kind       PartKind  `json:"kind"`
+	SKU        string    `json:"sku"`
+	Name       string    `json:"name"`
+	PriceMinor int64     `json:"price_minor"`
+	Currency   string    `json:"currency"`
+	// Dimensions is the value PartKind.NewDimensions makes for Kind, filled.
+	Dimensions any       `json:"dimensions"`
+	Version    int64     `json:"-"`
+	CreatedAt  time.Time `json:"created_at"`
+	UpdatedAt  time.Time `json:"updated_at"`
 }
 
 // ETag is the part's entity tag.
 func (p Part) ETag() string { return ETag(p.ID, p.Version) }
 
-// PartInput creates a part.
+// NewDimensions returns a new, empty value of what a part of kind k
+// measures — the compatibility check's part: *geometry.Hub, *geometry.Rim,
+// *spoke.Spec, *fit.Nipple, *fit.Washer or *fit.Tyre — or nil for an
+// unknown kind. Readers of stored or sent dimensions fill it.
+func (k PartKind) NewDimensions() any {
+	switch k {
+	case PartHub:
+		return new(geometry.Hub)
+	case PartRim:
+		return new(geometry.Rim)
+	case PartSpoke:
+		return new(spoke.Spec)
+	case PartNipple:
+		return new(fit.Nipple)
+	case PartWasher:
+		return new(fit.Washer)
+	case PartTyre:
+		return new(fit.Tyre)
+	}
+	return nil
+}
+
+// holds reports whether dims is a value of what kind k measures.
+func (k PartKind) holds(dims any) bool {
+	switch d := dims.(type) {
+	case *geometry.Hub:
+		return k == PartHub && d != nil
+	case *geometry.Rim:
+		return k == PartRim && d != nil
+	case *spoke.Spec:
+		return k == PartSpoke && d != nil
+	case *fit.Nipple:
+		return k == PartNipple && d != nil
+	case *fit.Washer:
+		return k == PartWasher && d != nil
+	case *fit.Tyre:
+		return k == PartTyre && d != nil
+	}
+	return false
+}
+
+// PartInput creates a part. Dimensions is the value NewDimensions makes
+// for Kind, filled.
 type PartInput struct {
 	Kind       PartKind
 	SKU        string
 	Name       string
 	PriceMinor int64
 	Currency   string
-	Dimensions json.RawMessage
+	Dimensions any
 }
 
-// PartPatch changes a part; nil leaves a field. The kind never changes.
+// PartPatch changes a part; nil leaves a field. The kind never changes, so
+// new dimensions are read for it: Dimensions, when not nil, returns the
+// value NewDimensions makes for the part's kind, filled (the HTTP layer
+// decodes them from the request there).
 type PartPatch struct {
 	SKU        *string
 	Name       *string
 	PriceMinor *int64
 	Currency   *string
-	Dimensions json.RawMessage
+	Dimensions func(PartKind) (any, error)
 }
 
 // PartFilter narrows a part list.
@@ -110,81 +153,33 @@ var (
 	skuRE      = regexp.MustCompile(`^[A-Za-z0-9][A-Za-z0-9._/-]{0,63}$`)
 )
 
-// decodeDimensions checks a part's dimensions against the fit check's
-// shape for its kind: strict JSON, every size finite and positive.
-func decodeDimensions(kind PartKind, raw json.RawMessage) (json.RawMessage, error) {
-	var target any
-	switch kind {
-	case PartHub:
-		target = &geometry.Hub{}
-	case PartRim:
-		target = &geometry.Rim{}
-	case PartSpoke:
-		target = &spoke.Spec{}
-	case PartNipple:
-		target = &fit.Nipple{}
-	case PartWasher:
-		target = &fit.Washer{}
-	case PartTyre:
-		target = &fit.Tyre{}
-	default:
-		return nil, Invalid("/kind", "kind must be hub, rim, spoke, nipple, washer or tyre")
+// checkDimensions refuses a part without dimensions of its kind. The sizes
+// the fit rules need are checked when a build uses the part.
+func checkDimensions(kind PartKind, dims any) error {
+	switch {
+	case !kind.Valid():
+		return field.Invalid("/kind", "kind must be hub, rim, spoke, nipple, washer or tyre")
+	case dims == nil:
+		return field.Invalid("/dimensions", "dimensions are required: the %s object the compatibility check takes", kind)
+	case !kind.holds(dims):
+		return field.Invalid("/dimensions", "dimensions must be the %s object the compatibility check takes", kind)
 	}
-	if len(bytes.TrimSpace(raw)) == 0 || bytes.Equal(bytes.TrimSpace(raw), []byte("null")) {
-		return nil, Invalid("/dimensions", "dimensions are required: the %s object the compatibility check takes", kind)
-	}
-	if err := strictjson.Unmarshal(raw, target); err != nil {
-		return nil, prefixPointers(err, "/dimensions")
-	}
-	// Every number in the object must be finite and not negative; sizes the
-	// fit check needs are checked there when a build uses the part.
-	var generic any
-	_ = json.Unmarshal(raw, &generic)
-	if ptr, ok := firstBadNumber(generic, "/dimensions"); !ok {
-		return nil, Invalid(ptr, "must be a finite number, not negative")
-	}
-	out, err := json.Marshal(target)
-	if err != nil {
-		return nil, err
-	}
-	return out, nil
-}
-
-func firstBadNumber(v any, at string) (string, bool) {
-	switch x := v.(type) {
-	case float64:
-		if x < 0 || math.IsInf(x, 0) || math.IsNaN(x) {
-			return at, false
-		}
-	case map[string]any:
-		for k, e := range x {
-			if p, ok := firstBadNumber(e, at+"/"+k); !ok {
-				return p, false
-			}
-		}
-	case []any:
-		for i, e := range x {
-			if p, ok := firstBadNumber(e, fmt.Sprintf("%s/%d", at, i)); !ok {
-				return p, false
-			}
-		}
-	}
-	return "", true
+	return nil
 }
 
 func validatePartFields(sku, name *string, price *int64, currency *string) error {
 	var errs []error
 	if sku != nil && !skuRE.MatchString(*sku) {
-		errs = append(errs, Invalid("/sku", "sku must be 1 to 64 letters, digits, '.', '_', '/' or '-', starting with a letter or digit"))
+		errs = append(errs, field.Invalid("/sku", "sku must be 1 to 64 letters, digits, '.', '_', '/' or '-', starting with a letter or digit"))
 	}
 	if name != nil && (strings.TrimSpace(*name) == "" || utf8.RuneCountInString(*name) > 200) {
-		errs = append(errs, Invalid("/name", "name must be 1 to 200 characters"))
+		errs = append(errs, field.Invalid("/name", "name must be 1 to 200 characters"))
 	}
 	if price != nil && (*price < 0 || *price > 1e12) {
-		errs = append(errs, Invalid("/price_minor", "price_minor must be from 0 to 10^12 minor units"))
+		errs = append(errs, field.Invalid("/price_minor", "price_minor must be from 0 to 10^12 minor units"))
 	}
 	if currency != nil && !currencyRE.MatchString(*currency) {
-		errs = append(errs, Invalid("/currency", "currency must be an ISO 4217 code such as EUR"))
+		errs = append(errs, field.Invalid("/currency", "currency must be an ISO 4217 code such as EUR"))
 	}
 	return errors.Join(errs...)
 }
@@ -194,16 +189,15 @@ func (s *Service) CreatePart(ctx context.Context, p Principal, in PartInput) (Pa
 	if err := validatePartFields(&in.SKU, &in.Name, &in.PriceMinor, &in.Currency); err != nil {
 		return Part{}, err
 	}
-	dims, err := decodeDimensions(in.Kind, in.Dimensions)
-	if err != nil {
+	if err := checkDimensions(in.Kind, in.Dimensions); err != nil {
 		return Part{}, err
 	}
 	now := s.now().UTC()
 	part := Part{ID: uuid.Must(uuid.NewV7()), OrgID: p.OrgID, Kind: in.Kind, SKU: in.SKU, Name: strings.TrimSpace(in.Name),
-		PriceMinor: in.PriceMinor, Currency: in.Currency, Dimensions: dims, Version: 1, CreatedAt: now, UpdatedAt: now}
+		PriceMinor: in.PriceMinor, Currency: in.Currency, Dimensions: in.Dimensions, Version: 1, CreatedAt: now, UpdatedAt: now}
 	if err := s.store.CreatePart(ctx, part); err != nil {
 		if errors.Is(err, ErrConflict) {
-			return Part{}, Unprocessable("/sku", "another part already has this sku")
+			return Part{}, field.Unprocessable("/sku", "another part already has this sku")
 		}
 		return Part{}, err
 	}
@@ -218,7 +212,7 @@ func (s *Service) GetPart(ctx context.Context, p Principal, id uuid.UUID) (Part,
 // ListParts lists the catalog by id.
 func (s *Service) ListParts(ctx context.Context, p Principal, f PartFilter, page Page) ([]Part, error) {
 	if f.Kind != "" && !f.Kind.Valid() {
-		return nil, Invalid("query:kind", "kind must be hub, rim, spoke, nipple, washer or tyre")
+		return nil, field.Invalid("query:kind", "kind must be hub, rim, spoke, nipple, washer or tyre")
 	}
 	return s.store.ListParts(ctx, p.OrgID, f, page)
 }
@@ -235,14 +229,18 @@ func (s *Service) UpdatePart(ctx context.Context, p Principal, id uuid.UUID, ifM
 	if err := checkIfMatch(ifMatch, cur.ETag(), "part"); err != nil {
 		return Part{}, err
 	}
+	var dims any
 	if patch.Dimensions != nil {
-		if patch.Dimensions, err = decodeDimensions(cur.Kind, patch.Dimensions); err != nil {
+		if dims, err = patch.Dimensions(cur.Kind); err != nil {
+			return Part{}, err
+		}
+		if err := checkDimensions(cur.Kind, dims); err != nil {
 			return Part{}, err
 		}
 	}
-	out, err := s.store.UpdatePart(ctx, p.OrgID, id, cur.Version, patch)
+	out, err := s.store.UpdatePart(ctx, p.OrgID, id, cur.Version, patch, dims)
 	if errors.Is(err, ErrConflict) {
-		return Part{}, Unprocessable("/sku", "another part already has this sku")
+		return Part{}, field.Unprocessable("/sku", "another part already has this sku")
 	}
 	return out, err
 }
@@ -299,24 +297,24 @@ func (s *Service) PutPartStock(ctx context.Context, p Principal, id uuid.UUID, i
 	for i, l := range levels {
 		at := fmt.Sprintf("/levels/%d", i)
 		if l.Quantity < 0 || l.Quantity > maxStockQuantity {
-			errs = append(errs, Invalid(at+"/quantity", "quantity must be from 0 to %d", maxStockQuantity))
+			errs = append(errs, field.Invalid(at+"/quantity", "quantity must be from 0 to %d", maxStockQuantity))
 		}
 		if part.Kind == PartSpoke {
 			if !(l.LengthMM > 0 && l.LengthMM <= 1000) || math.Abs(l.LengthMM*10-math.Round(l.LengthMM*10)) > 1e-9 {
-				errs = append(errs, Invalid(at+"/length_mm", "a spoke's stock needs length_mm, above 0 and at most 1000, in steps of 0.1 mm"))
+				errs = append(errs, field.Invalid(at+"/length_mm", "a spoke's stock needs length_mm, above 0 and at most 1000, in steps of 0.1 mm"))
 			}
 		} else if l.LengthMM != 0 {
-			errs = append(errs, Invalid(at+"/length_mm", "only spokes are stocked by length"))
+			errs = append(errs, field.Invalid(at+"/length_mm", "only spokes are stocked by length"))
 		}
 		key := StockLevel{LocationID: l.LocationID, LengthMM: l.LengthMM}
 		if seen[key] {
-			errs = append(errs, Invalid(at, "the same location and length appear twice"))
+			errs = append(errs, field.Invalid(at, "the same location and length appear twice"))
 		}
 		seen[key] = true
 		if !p.Reaches(l.LocationID) {
-			errs = append(errs, Unprocessable(at+"/location_id", "no such location in this organisation"))
+			errs = append(errs, field.Unprocessable(at+"/location_id", "no such location in this organisation"))
 		} else if _, err := s.store.GetLocation(ctx, p.OrgID, l.LocationID); errors.Is(err, ErrNotFound) {
-			errs = append(errs, Unprocessable(at+"/location_id", "no such location in this organisation"))
+			errs = append(errs, field.Unprocessable(at+"/location_id", "no such location in this organisation"))
 		} else if err != nil {
 			return PartStock{}, err
 		}

@@ -12,6 +12,7 @@ import (
 
 	"github.com/google/uuid"
 
+	"wheelbench/service/field"
 	"wheelbench/service/fit"
 	"wheelbench/service/geometry"
 	"wheelbench/service/quote"
@@ -97,7 +98,7 @@ var ErrStockShort = fmt.Errorf("%w: not enough stock", ErrConflict)
 func (s *Service) CreateQuote(ctx context.Context, p Principal, buildID uuid.UUID) (Quote, error) {
 	b, err := s.reachableBuild(ctx, p, buildID)
 	if errors.Is(err, ErrNotFound) {
-		return Quote{}, Unprocessable("/build_id", "no such build in this organisation")
+		return Quote{}, field.Unprocessable("/build_id", "no such build in this organisation")
 	}
 	if err != nil {
 		return Quote{}, err
@@ -106,11 +107,11 @@ func (s *Service) CreateQuote(ctx context.Context, p Principal, buildID uuid.UUI
 		return Quote{}, fmt.Errorf("%w: a %s build cannot be quoted", ErrConflict, b.Status)
 	}
 	if b.Snapshot.Compatibility.Verdict == fit.DoesNotFit {
-		return Quote{}, Unprocessable("/build_id", "the build's parts do not fit; see its findings")
+		return Quote{}, field.Unprocessable("/build_id", "the build's parts do not fit; see its findings")
 	}
 	pl, err := s.store.GetPriceList(ctx, p.OrgID)
 	if errors.Is(err, ErrNotFound) {
-		return Quote{}, Unprocessable("/build_id", "set the organisation's price list (PUT /v1/price-list) before quoting")
+		return Quote{}, field.Unprocessable("/build_id", "set the organisation's price list (PUT /v1/price-list) before quoting")
 	}
 	if err != nil {
 		return Quote{}, err
@@ -152,7 +153,7 @@ func (s *Service) quoteInput(ctx context.Context, p Principal, b Build, currency
 			return nil, err
 		}
 		if pt.Currency != currency {
-			return nil, Unprocessable("/build_id", "part %s is priced in %s, the price list in %s", pt.SKU, pt.Currency, currency)
+			return nil, field.Unprocessable("/build_id", "part %s is priced in %s, the price list in %s", pt.SKU, pt.Currency, currency)
 		}
 		return &pt, nil
 	}
@@ -278,14 +279,31 @@ func (s *Service) GetQuote(ctx context.Context, p Principal, id uuid.UUID) (Quot
 
 // AcceptQuote orders the quote's build and takes its stock, atomically:
 // when any location is short the whole acceptance is refused (409) and
-// nothing changes; stock never goes negative.
+// nothing changes; stock never goes negative. Only an open quote that has
+// not expired may be accepted (acceptable).
 func (s *Service) AcceptQuote(ctx context.Context, p Principal, id uuid.UUID) (Quote, error) {
 	if p.Bound() { // a quote's location never changes: checked before, it holds
 		if _, err := s.GetQuote(ctx, p, id); err != nil {
 			return Quote{}, err
 		}
 	}
-	return s.store.AcceptQuote(ctx, p.OrgID, id, s.now().UTC())
+	now := s.now().UTC()
+	return s.store.AcceptQuote(ctx, p.OrgID, id, now, func(q Quote) error { return q.acceptable(now) })
+}
+
+// acceptable says whether q may be accepted at now: it is open (not
+// accepted already, nor superseded by a newer quote of its build) and not
+// past its validity.
+func (q Quote) acceptable(now time.Time) error {
+	switch {
+	case q.Status == QuoteAccepted:
+		return fmt.Errorf("%w: the quote is already accepted", ErrConflict)
+	case q.Status != QuoteOpen:
+		return fmt.Errorf("%w: the quote was superseded by a newer one", ErrConflict)
+	case now.After(q.ValidUntil):
+		return fmt.Errorf("%w: the quote expired on %s; ask for a new one", ErrConflict, q.ValidUntil.Format(time.DateOnly))
+	}
+	return nil
 }
 
 // hasFinding reports whether fs holds code for side.

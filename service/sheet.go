@@ -2,13 +2,10 @@ package service
 
 import (
 	"context"
-	"encoding/json"
 	"errors"
 	"fmt"
 
 	"github.com/google/uuid"
-
-	"wheelbench/service/tension"
 )
 
 // BuildSheet is what a build's bench sheet shows, read for the view that
@@ -30,10 +27,6 @@ type BuildSheet struct {
 	// read (Missing then says which).
 	Tool        *Tool
 	Calibration *Calibration
-	// Aims are the target readings per side, decoded; nil when the
-	// snapshot has none (no calibrated tensiometer at the location when
-	// the build was computed).
-	Aims *SheetAims
 	// Missing lists, in plain words, what the snapshot names but could not
 	// be read now (a part no longer in the catalog, say).
 	Missing []string
@@ -48,18 +41,6 @@ type SheetPart struct {
 	// be read (CatalogID is then set).
 	Part      *Part
 	CatalogID *uuid.UUID
-}
-
-// SheetAims are the aim readings of both sides.
-type SheetAims struct {
-	Left, Right SheetAim
-}
-
-// SheetAim is one side's aim reading: the target conversion, or why the
-// calibration refused it.
-type SheetAim struct {
-	Target  *tension.Target
-	Refused string
 }
 
 // BuildSheet reads what a build's bench sheet needs. ErrNotFound when the
@@ -151,7 +132,6 @@ func (s *Service) BuildSheet(ctx context.Context, p Principal, id uuid.UUID) (Bu
 	if tr == nil {
 		return out, nil
 	}
-	out.Aims = &SheetAims{Left: decodeAim(tr.Left), Right: decodeAim(tr.Right)}
 	tool, err := s.store.GetTool(ctx, p.OrgID, tr.ToolID)
 	switch {
 	case errors.Is(err, ErrNotFound):
@@ -171,27 +151,6 @@ func (s *Service) BuildSheet(ctx context.Context, p Principal, id uuid.UUID) (Bu
 		out.Calibration = &cal
 	}
 	return out, nil
-}
-
-// decodeAim reads one side of the snapshot's target readings: the
-// tension package's Target, or {"refused": reason}. Bytes that are neither
-// are reported as refused, so the sheet never prints a number it could not
-// read.
-func decodeAim(raw json.RawMessage) SheetAim {
-	var probe struct {
-		Refused *string `json:"refused"`
-	}
-	if err := json.Unmarshal(raw, &probe); err != nil {
-		return SheetAim{Refused: "the stored aim reading could not be read"}
-	}
-	if probe.Refused != nil {
-		return SheetAim{Refused: *probe.Refused}
-	}
-	var t tension.Target
-	if err := json.Unmarshal(raw, &t); err != nil {
-		return SheetAim{Refused: "the stored aim reading could not be read"}
-	}
-	return SheetAim{Target: &t}
 }
 
 // notFoundIsInternal turns ErrNotFound for something a stored build points

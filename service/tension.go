@@ -4,29 +4,11 @@ import (
 	"context"
 	"errors"
 	"fmt"
-	"strings"
 
 	"github.com/google/uuid"
 
+	"wheelbench/service/field"
 	"wheelbench/service/tension"
-)
-
-// The tension types that cross the service boundary. The HTTP layer reads
-// and writes them through these names and does not import service/tension.
-type (
-	SpokeSpec          = tension.SpokeSpec
-	CalibrationColumn  = tension.Column
-	CalibrationPoint   = tension.Point
-	ToolFacts          = tension.Tool
-	TensionModel       = tension.Model
-	TensionWarning     = tension.Warning
-	ConversionRequest  = tension.ConversionRequest
-	ConversionResponse = tension.ConversionResponse
-	AuditRequest       = tension.AuditRequest
-	AuditReading       = tension.AuditReading
-	AuditResult        = tension.AuditResult
-	ToolParams         = tension.ToolParams
-	SpokeVerdict       = tension.SpokeVerdict
 )
 
 // CalibrationRef names the calibration a computation uses: a stored
@@ -39,17 +21,17 @@ type CalibrationRef struct {
 
 // InlineCalibration is a calibration sent with a computation.
 type InlineCalibration struct {
-	Source  string
-	Columns []CalibrationColumn
-	Tool    ToolFacts
+	Source  string           `json:"source"`
+	Columns []tension.Column `json:"columns"`
+	Tool    tension.Tool     `json:"tool"`
 }
 
 // modelFor resolves ref to a fitted model; cal is the stored version used,
 // nil for an inline calibration.
-func (s *Service) modelFor(ctx context.Context, p Principal, ref CalibrationRef) (m *TensionModel, cal *Calibration, err error) {
+func (s *Service) modelFor(ctx context.Context, p Principal, ref CalibrationRef) (m *tension.Model, cal *Calibration, err error) {
 	switch {
 	case ref.ID != nil && ref.Inline != nil:
-		return nil, nil, Invalid("/calibration", "give calibration_id or an inline calibration, not both")
+		return nil, nil, field.Invalid("/calibration", "give calibration_id or an inline calibration, not both")
 	case ref.ID != nil:
 		c, err := s.store.GetCalibration(ctx, p.OrgID, *ref.ID)
 		if errors.Is(err, ErrNotFound) {
@@ -65,51 +47,36 @@ func (s *Service) modelFor(ctx context.Context, p Principal, ref CalibrationRef)
 	case ref.Inline != nil:
 		m, err := tension.Fit(tension.Calibration{Source: ref.Inline.Source, Columns: ref.Inline.Columns}, ref.Inline.Tool)
 		if err != nil {
-			return nil, nil, inlinePointers(err)
+			return nil, nil, field.Map(err, inlinePointer)
 		}
 		return m, nil, nil
 	}
-	return nil, nil, Invalid("/calibration_id", "give calibration_id or an inline calibration")
+	return nil, nil, field.Invalid("/calibration_id", "give calibration_id or an inline calibration")
 }
 
-// inlinePointers places Fit's pointers inside the request body: the tool
+// inlinePointer places a pointer of Fit inside the request body: the tool
 // facts under /calibration/tool, everything else under /calibration.
-func inlinePointers(err error) error {
-	if multi, ok := err.(interface{ Unwrap() []error }); ok {
-		var out []error
-		for _, e := range multi.Unwrap() {
-			out = append(out, inlinePointers(e))
-		}
-		return errors.Join(out...)
+func inlinePointer(p string) string {
+	if p == "/unit_mm" || p == "/measured_span_mm" {
+		return "/calibration/tool" + p
 	}
-	var fe *tension.FieldError
-	if !errors.As(err, &fe) {
-		return err
-	}
-	c := *fe
-	if c.Pointer == "/unit_mm" || c.Pointer == "/measured_span_mm" {
-		c.Pointer = "/calibration/tool" + c.Pointer
-	} else {
-		c.Pointer = "/calibration" + c.Pointer
-	}
-	return &c
+	return "/calibration" + p
 }
 
 // ConversionOutput is a conversion's answer and the stored calibration
 // version it used (nil for an inline calibration).
 type ConversionOutput struct {
 	Calibration *Calibration
-	ConversionResponse
+	tension.ConversionResponse
 }
 
 // ConvertTension converts readings to tensions, or a target tension to the
 // reading to aim for. It stores nothing.
-func (s *Service) ConvertTension(ctx context.Context, p Principal, ref CalibrationRef, req ConversionRequest) (ConversionOutput, error) {
+func (s *Service) ConvertTension(ctx context.Context, p Principal, ref CalibrationRef, req tension.ConversionRequest) (ConversionOutput, error) {
 	m, cal, err := s.modelFor(ctx, p, ref)
 	if err != nil {
 		return ConversionOutput{}, err
 	}
-	req.Calibration, req.CalibrationID = nil, ""
 	out, err := m.ConvertRequest(req)
 	if err != nil {
 		return ConversionOutput{}, err
@@ -121,16 +88,15 @@ func (s *Service) ConvertTension(ctx context.Context, p Principal, ref Calibrati
 // used (nil for an inline calibration).
 type AuditOutput struct {
 	Calibration *Calibration
-	AuditResult
+	tension.AuditResult
 }
 
 // AuditTension judges one wheel's readings. It stores nothing.
-func (s *Service) AuditTension(ctx context.Context, p Principal, ref CalibrationRef, req AuditRequest) (AuditOutput, error) {
+func (s *Service) AuditTension(ctx context.Context, p Principal, ref CalibrationRef, req tension.AuditRequest) (AuditOutput, error) {
 	m, cal, err := s.modelFor(ctx, p, ref)
 	if err != nil {
 		return AuditOutput{}, err
 	}
-	req.Calibration, req.CalibrationID = nil, ""
 	out, err := m.Audit(req)
 	if err != nil {
 		return AuditOutput{}, err
@@ -138,45 +104,30 @@ func (s *Service) AuditTension(ctx context.Context, p Principal, ref Calibration
 	return AuditOutput{Calibration: cal, AuditResult: out}, nil
 }
 
-// CalibrationChart draws a stored calibration version as SVG, titled with
-// its tool's label and serial and the version, with the requested
-// section's curve and 95 % band when spec is not nil. Field
-// errors name the query parameters.
-func (s *Service) CalibrationChart(ctx context.Context, p Principal, id uuid.UUID, spec *SpokeSpec) ([]byte, error) {
+// CalibrationChart is what the chart of a calibration version shows: its
+// curves (and a requested section's) and the tool and version they belong
+// to. Drawing it is a view's business.
+type CalibrationChart struct {
+	Chart       tension.Chart
+	Tool        Tool
+	Calibration Calibration
+}
+
+// CalibrationChart computes the curves of a stored calibration version,
+// with the requested section's curve and 95 % band when spec is not nil
+// (field errors point under "/spoke").
+func (s *Service) CalibrationChart(ctx context.Context, p Principal, id uuid.UUID, spec *tension.SpokeSpec) (CalibrationChart, error) {
 	m, cal, err := s.modelFor(ctx, p, CalibrationRef{ID: &id})
 	if err != nil {
-		return nil, err
+		return CalibrationChart{}, err
 	}
 	tool, err := s.store.GetTool(ctx, p.OrgID, cal.ToolID)
 	if err != nil {
-		return nil, fmt.Errorf("calibration %s: tool %s: %w", cal.ID, cal.ToolID, err)
+		return CalibrationChart{}, fmt.Errorf("calibration %s: tool %s: %w", cal.ID, cal.ToolID, err)
 	}
-	svg, err := m.Chart(spec, tension.ChartHeading{ToolLabel: tool.Label, ToolSerial: tool.Serial,
-		CalibrationVersion: cal.Version, Source: cal.Source, Published: cal.CreatedAt})
-	return svg, queryPointers(err)
-}
-
-// queryPointers turns the chart's "/spoke/NAME" pointers into "query:NAME".
-func queryPointers(err error) error {
-	if err == nil {
-		return nil
+	c, err := m.Chart(spec)
+	if err != nil {
+		return CalibrationChart{}, err
 	}
-	if multi, ok := err.(interface{ Unwrap() []error }); ok {
-		var out []error
-		for _, e := range multi.Unwrap() {
-			out = append(out, queryPointers(e))
-		}
-		return errors.Join(out...)
-	}
-	var fe *tension.FieldError
-	if !errors.As(err, &fe) {
-		return err
-	}
-	c := *fe
-	name := strings.TrimPrefix(strings.TrimPrefix(c.Pointer, "/spoke"), "/")
-	if name == "" {
-		name = "diameter_mm"
-	}
-	c.Pointer = "query:" + name
-	return &c
+	return CalibrationChart{Chart: c, Tool: tool, Calibration: *cal}, nil
 }

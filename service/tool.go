@@ -11,6 +11,7 @@ import (
 
 	"github.com/google/uuid"
 
+	"wheelbench/service/field"
 	"wheelbench/service/tension"
 )
 
@@ -36,19 +37,19 @@ type Tool struct {
 func (t Tool) ETag() string { return ETag(t.ID, t.Version) }
 
 // Facts are what the tool model needs to know about the tool.
-func (t Tool) Facts() ToolFacts {
-	return ToolFacts{UnitMM: t.UnitMM, MeasuredSpanMM: t.MeasuredSpanMM}
+func (t Tool) Facts() tension.Tool {
+	return tension.Tool{UnitMM: t.UnitMM, MeasuredSpanMM: t.MeasuredSpanMM}
 }
 
 // ToolInput is what creating a tool takes. UnitMM nil means DefaultUnitMM.
 type ToolInput struct {
-	ID             uuid.UUID // optional: zero means a new id
-	LocationID     uuid.UUID
-	Label          string
-	Serial         string
-	UnitMM         *float64
-	MeasuredSpanMM *float64
-	Notes          string
+	ID             uuid.UUID `json:"-"` // optional: zero means a new id
+	LocationID     uuid.UUID `json:"location_id"`
+	Label          string    `json:"label"`
+	Serial         string    `json:"serial"`
+	UnitMM         *float64  `json:"unit_mm"`
+	MeasuredSpanMM *float64  `json:"measured_span_mm"`
+	Notes          string    `json:"notes"`
 }
 
 // ToolPatch holds the fields a PATCH may change; nil leaves a field.
@@ -67,22 +68,22 @@ func validateToolFields(label, serial, notes *string, unit, span *float64) error
 	var errs []error
 	if label != nil {
 		if n := strings.TrimSpace(*label); n == "" || utf8.RuneCountInString(n) > 200 {
-			errs = append(errs, Invalid("/label", "label must be 1 to 200 characters"))
+			errs = append(errs, field.Invalid("/label", "label must be 1 to 200 characters"))
 		}
 	}
 	if serial != nil && utf8.RuneCountInString(*serial) > 100 {
-		errs = append(errs, Invalid("/serial", "serial must be at most 100 characters"))
+		errs = append(errs, field.Invalid("/serial", "serial must be at most 100 characters"))
 	}
 	if notes != nil && utf8.RuneCountInString(*notes) > 2000 {
-		errs = append(errs, Invalid("/notes", "notes must be at most 2000 characters"))
+		errs = append(errs, field.Invalid("/notes", "notes must be at most 2000 characters"))
 	}
 	// The same bounds as the tool model's own (tension.Fit), so that a
 	// stored tool's facts always fit.
 	if unit != nil && (math.IsNaN(*unit) || *unit <= 0 || *unit > 1) {
-		errs = append(errs, Invalid("/unit_mm", "unit_mm must be the dial's millimetres per unit, above 0 and at most 1 (usually 0.01)"))
+		errs = append(errs, field.Invalid("/unit_mm", "unit_mm must be the dial's millimetres per unit, above 0 and at most 1 (usually 0.01)"))
 	}
 	if span != nil && (math.IsNaN(*span) || *span <= 0 || *span > 500) {
-		errs = append(errs, Invalid("/measured_span_mm", "measured_span_mm must be the anvil span in mm, above 0 and at most 500"))
+		errs = append(errs, field.Invalid("/measured_span_mm", "measured_span_mm must be the anvil span in mm, above 0 and at most 500"))
 	}
 	return errors.Join(errs...)
 }
@@ -95,7 +96,7 @@ var errOtherLocationsTool = fmt.Errorf("%w: this tool belongs to another locatio
 // 422 naming the field.
 func (s *Service) checkLocation(ctx context.Context, p Principal, id uuid.UUID) error {
 	if _, err := s.store.GetLocation(ctx, p.OrgID, id); errors.Is(err, ErrNotFound) || (err == nil && !p.Reaches(id)) {
-		return Unprocessable("/location_id", "no location %s in this organisation", id)
+		return field.Unprocessable("/location_id", "no location %s in this organisation", id)
 	} else if err != nil {
 		return err
 	}
@@ -176,25 +177,25 @@ func (s *Service) UpdateTool(ctx context.Context, p Principal, id uuid.UUID, ifM
 // Calibration is one immutable version of a tool's calibration, with the
 // tool model fitted once when it was published (Model, never refitted).
 type Calibration struct {
-	ID      uuid.UUID           `json:"id"`
-	OrgID   uuid.UUID           `json:"-"`
-	ToolID  uuid.UUID           `json:"tool_id"`
-	Version int                 `json:"version"`
-	Source  string              `json:"source"`
-	Notes   string              `json:"notes"`
-	Tool    ToolFacts           `json:"tool"`
-	Columns []CalibrationColumn `json:"columns"`
+	ID      uuid.UUID        `json:"id"`
+	OrgID   uuid.UUID        `json:"-"`
+	ToolID  uuid.UUID        `json:"tool_id"`
+	Version int              `json:"version"`
+	Source  string           `json:"source"`
+	Notes   string           `json:"notes"`
+	Tool    tension.Tool     `json:"tool"`
+	Columns []tension.Column `json:"columns"`
 	// Model is the fitted tool model as stored; it is not part of the feed.
-	Model     *TensionModel `json:"-"`
-	CreatedAt time.Time     `json:"created_at"`
+	Model     *tension.Model `json:"-"`
+	CreatedAt time.Time      `json:"created_at"`
 }
 
 // CalibrationInput is what publishing a calibration takes.
 type CalibrationInput struct {
-	ID      uuid.UUID // optional: zero means a new id
-	Source  string    // maker_table (default) or known_tension
-	Notes   string
-	Columns []CalibrationColumn
+	ID      uuid.UUID        `json:"-"`      // optional: zero means a new id
+	Source  string           `json:"source"` // maker_table (default) or known_tension
+	Notes   string           `json:"notes"`
+	Columns []tension.Column `json:"columns"`
 }
 
 // PublishCalibration validates the columns, fits the tool model once with
@@ -205,7 +206,7 @@ type CalibrationInput struct {
 func (s *Service) PublishCalibration(ctx context.Context, p Principal, toolID uuid.UUID, in CalibrationInput) (Calibration, error) {
 	defer s.locations.forgetOrganisation(p.OrgID)
 	if utf8.RuneCountInString(in.Notes) > 2000 {
-		return Calibration{}, Invalid("/notes", "notes must be at most 2000 characters")
+		return Calibration{}, field.Invalid("/notes", "notes must be at most 2000 characters")
 	}
 	tool, err := s.store.GetTool(ctx, p.OrgID, toolID)
 	if err != nil {

@@ -89,11 +89,11 @@ func ETag(id uuid.UUID, version int64) string {
 
 // LocationPatch holds the fields a PATCH may change; nil leaves a field.
 type LocationPatch struct {
-	Name       *string
-	Code       *string
-	Timezone   *string
-	Address    *string
-	TaxRatePPM *int64
+	Name       *string `json:"name"`
+	Code       *string `json:"code"`
+	Timezone   *string `json:"timezone"`
+	Address    *string `json:"address"`
+	TaxRatePPM *int64  `json:"tax_rate_ppm"`
 }
 
 // APIKey is a stored key: only its hash and a display prefix are kept.

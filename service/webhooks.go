@@ -14,6 +14,7 @@ import (
 
 	"github.com/google/uuid"
 
+	"wheelbench/service/field"
 	"wheelbench/service/webhook"
 )
 
@@ -46,20 +47,20 @@ const DisabledGone = "the receiver answered 410 Gone"
 
 // WebhookEndpointInput creates an endpoint. Active nil means true.
 type WebhookEndpointInput struct {
-	URL         string
-	Events      []string
-	Active      *bool
-	Description string
+	URL         string   `json:"url"`
+	Events      []string `json:"events"`
+	Active      *bool    `json:"active"`
+	Description string   `json:"description"`
 }
 
 // WebhookEndpointPatch changes an endpoint; nil leaves a field. Setting
 // Active to false cancels the endpoint's pending deliveries; setting it to
 // true clears DisabledReason (only events after that are delivered).
 type WebhookEndpointPatch struct {
-	URL         *string
-	Events      []string // nil leaves the list
-	Active      *bool
-	Description *string
+	URL         *string  `json:"url"`
+	Events      []string `json:"events"` // nil leaves the list
+	Active      *bool    `json:"active"`
+	Description *string  `json:"description"`
 }
 
 // WebhookSettings are the process-wide webhook choices of a Service.
@@ -90,14 +91,14 @@ var eventNameRE = regexp.MustCompile(`^[a-z][a-z0-9_]{0,63}$`)
 // subscription can name an event type before the first change of it.
 func validateEvents(events []string) error {
 	if len(events) == 0 || len(events) > MaxWebhookEvents {
-		return Invalid("/events", "events must list 1 to %d patterns", MaxWebhookEvents)
+		return field.Invalid("/events", "events must list 1 to %d patterns", MaxWebhookEvents)
 	}
 	var errs []error
 	seen := map[string]bool{}
 	for i, ev := range events {
 		ptr := fmt.Sprintf("/events/%d", i)
 		if seen[ev] {
-			errs = append(errs, Invalid(ptr, "%q is listed twice", ev))
+			errs = append(errs, field.Invalid(ptr, "%q is listed twice", ev))
 			continue
 		}
 		seen[ev] = true
@@ -106,12 +107,12 @@ func validateEvents(events []string) error {
 		}
 		res, name, ok := strings.Cut(ev, ".")
 		if !ok || !slices.Contains(ChangeResources, res) {
-			errs = append(errs, Invalid(ptr, "%q must be *, <resource>.* or <resource>.<event> with a resource of %s",
+			errs = append(errs, field.Invalid(ptr, "%q must be *, <resource>.* or <resource>.<event> with a resource of %s",
 				ev, strings.Join(ChangeResources, ", ")))
 			continue
 		}
 		if name != "*" && !eventNameRE.MatchString(name) {
-			errs = append(errs, Invalid(ptr, "%q: the event after the dot must be * or lower-case letters, digits and _", ev))
+			errs = append(errs, field.Invalid(ptr, "%q: the event after the dot must be * or lower-case letters, digits and _", ev))
 		}
 	}
 	return errors.Join(errs...)
@@ -144,7 +145,7 @@ func (s *Service) validateEndpointFields(url *string, events []string, descripti
 		}
 	}
 	if description != nil && utf8.RuneCountInString(*description) > maxWebhookDescription {
-		errs = append(errs, Invalid("/description", "description must be at most %d characters", maxWebhookDescription))
+		errs = append(errs, field.Invalid("/description", "description must be at most %d characters", maxWebhookDescription))
 	}
 	return errors.Join(errs...)
 }

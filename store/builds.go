@@ -4,6 +4,7 @@ import (
 	"context"
 	"encoding/json"
 	"errors"
+	"fmt"
 	"time"
 
 	"github.com/google/uuid"
@@ -15,51 +16,63 @@ import (
 
 const buildColumns = `org_id, id, location_id, external_ref, status, spec, snapshot, notes, version, created_at, updated_at`
 
+// scanBuild reads a build row. The spec and snapshot columns hold the
+// JSON of service.BuildSpec and service.BuildSnapshot (rows written before
+// the spec was kept typed hold the spec as it was sent, which reads the
+// same).
 func scanBuild(row pgx.CollectableRow) (service.Build, error) {
 	var b service.Build
 	var status string
-	var snap []byte
-	err := row.Scan(&b.OrgID, &b.ID, &b.LocationID, &b.ExternalRef, &status, &b.Spec, &snap, &b.Notes, &b.Version, &b.CreatedAt, &b.UpdatedAt)
+	var spec, snap []byte
+	err := row.Scan(&b.OrgID, &b.ID, &b.LocationID, &b.ExternalRef, &status, &spec, &snap, &b.Notes, &b.Version, &b.CreatedAt, &b.UpdatedAt)
 	if err != nil {
 		return b, err
 	}
 	b.Status = service.BuildStatus(status)
-	return b, json.Unmarshal(snap, &b.Snapshot)
+	if err := json.Unmarshal(spec, &b.Spec); err != nil {
+		return b, fmt.Errorf("build %s spec: %w", b.ID, err)
+	}
+	if err := json.Unmarshal(snap, &b.Snapshot); err != nil {
+		return b, fmt.Errorf("build %s snapshot: %w", b.ID, err)
+	}
+	return b, nil
 }
 
 // CreateBuild inserts b and its build.created change. b's location must be
 // one of its organisation's: the service checks that first, to answer with
 // the field at fault, and the foreign key (org_id, location_id) →
-// locations holds it in the database (migration 00010).
+// locations holds it in the database (migration 00004).
 func (s *Store) CreateBuild(ctx context.Context, b service.Build) (err error) {
 	defer wrap(&err, "create build")
-	snap := []byte(b.SnapshotJSON)
-	if snap == nil {
-		if snap, err = json.Marshal(b.Snapshot); err != nil {
-			return err
-		}
+	spec, err := json.Marshal(b.Spec)
+	if err != nil {
+		return err
+	}
+	snap, err := json.Marshal(b.Snapshot)
+	if err != nil {
+		return err
 	}
 	args, err := changeArgs(b.OrgID, service.Change{Type: "build.created", ResourceID: b.ID, LocationID: &b.LocationID, Data: buildSummary(b)})
 	if err != nil {
 		return err
 	}
-	// UUIDs go as [16]byte: pgx encodes those straight to binary, while
-	// uuid.UUID's driver.Valuer (a string) first fails the binary encoding,
-	// builds an error, and is parsed back.
-	_, err = s.db(ctx).Exec(ctx, createBuildQuery, [16]byte(b.OrgID), [16]byte(b.ID), [16]byte(b.LocationID), b.ExternalRef, string(b.Status),
-		[]byte(b.Spec), snap, b.Notes, b.Version, b.CreatedAt, b.UpdatedAt,
-		args[1], args[4], args[5], args[6], args[7])
+	// UUIDs go as [16]byte (changeArgs does the same): pgx encodes those
+	// straight to binary, while uuid.UUID's driver.Valuer (a string) first
+	// fails the binary encoding, builds an error, and is parsed back.
+	_, err = s.db(ctx).Exec(ctx, createBuildStatement, args[0], args[1], args[2], args[3], args[4], args[5], args[6], args[7],
+		b.ExternalRef, string(b.Status), spec, snap, b.Notes, b.Version, b.CreatedAt, b.UpdatedAt)
 	return err
 }
 
-// createBuildQuery inserts a build and its build.created change (feed row
-// and outbox rows) in one statement: one round trip, one transaction (the
-// request's, when ctx carries one), and for PostgreSQL one statement to run
-// rather than two. The change's organisation, resource and location are
-// the build's $1, $2 and $3.
-var createBuildQuery = changeSQL(`build AS (
-	    INSERT INTO builds (`+buildColumns+`) VALUES ($1, $2, $3, $4, $5, $6, $7, $8, $9, $10, $11)),
-	  `, changeParams{1, 12, 2, 3, 13, 14, 15, 16})
+// createBuildStatement inserts a build and its build.created change (feed
+// row and outbox rows) in one statement: one round trip, one transaction
+// (the request's, when ctx carries one), and for PostgreSQL one statement
+// to run rather than two. $1 to $8 are the change's (changeInsert): its
+// organisation, resource and location ($1, $3, $4) are the build's; $9 on
+// are the build's other columns.
+const createBuildStatement = `WITH build AS (
+	    INSERT INTO builds (` + buildColumns + `) VALUES ($1, $3, $4, $9, $10, $11, $12, $13, $14, $15, $16)),
+	  ` + changeInsert
 
 // buildSummary is a build's change-feed payload: everything but the
 // (large) snapshot, which the resource itself serves. Its fields are in

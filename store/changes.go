@@ -14,51 +14,35 @@ import (
 )
 
 // recordChange appends c to the feed on q — the transaction of the change —
-// and, in the same transaction, to the webhook outbox of every endpoint
+// and, in the same statement, to the webhook outbox of every endpoint
 // subscribed to it.
 func recordChange(ctx context.Context, q querier, orgID uuid.UUID, c service.Change) error {
-	sql, args, err := changeStatement(orgID, c)
+	args, err := changeArgs(orgID, c)
 	if err != nil {
 		return err
 	}
-	_, err = q.Exec(ctx, sql, args...)
+	_, err = q.Exec(ctx, changeStatement, args[:]...)
 	return err
 }
 
-// changeStatement is the one statement that appends change c to the feed
-// and, for every active endpoint of the organisation subscribed to its
-// type, queues a webhook delivery (the outbox), so that both commit with
-// the change. Run it with recordChange, or queue it in a pgx.Batch.
-func changeStatement(orgID uuid.UUID, c service.Change) (string, []any, error) {
-	args, err := changeArgs(orgID, c)
-	if err != nil {
-		return "", nil, err
-	}
-	return changeQuery, args[:], nil
-}
-
-// changeParams numbers a change statement's parameters: organisation,
-// type, resource, location, data, occurred_at, event id, webhook body (the
-// order of changeArgs).
-type changeParams [8]int
-
-// changeQuery is changeStatement's statement.
-var changeQuery = changeSQL("", changeParams{1, 2, 3, 4, 5, 6, 7, 8})
-
-// changeSQL writes the change statement with its parameters numbered by p,
-// after the common table expressions in with (each "name AS (...), "), so
-// that another insert can go in the same statement.
-func changeSQL(with string, p changeParams) string {
-	return fmt.Sprintf(`WITH %schange AS (
-	    INSERT INTO changes (org_id, type, resource_id, location_id, data, occurred_at) VALUES ($%[2]d, $%[3]d, $%[4]d, $%[5]d, $%[6]d, $%[7]d))
+// changeInsert appends a change to the feed and, for every active endpoint
+// of the organisation subscribed to its type (service.MatchesEvent's rule),
+// queues a webhook delivery (the outbox), so that both commit with the
+// change. Its parameters are changeArgs': $1 organisation, $2 type, $3
+// resource, $4 location, $5 data, $6 occurred_at, $7 event id, $8 webhook
+// body. A statement that writes something else too puts its own insert in
+// front as another common table expression (createBuildStatement).
+const changeInsert = `change AS (
+	    INSERT INTO changes (org_id, type, resource_id, location_id, data, occurred_at) VALUES ($1, $2, $3, $4, $5, $6))
 	  INSERT INTO webhook_deliveries (org_id, endpoint_id, event_id, type, body)
-	  SELECT org_id, id, $%[8]d, $%[3]d, $%[9]d FROM webhook_endpoints
-	  WHERE org_id = $%[2]d AND active
-	    AND ($%[3]d = ANY (events) OR split_part($%[3]d, '.', 1) || '.*' = ANY (events) OR '*' = ANY (events))`,
-		with, p[0], p[1], p[2], p[3], p[4], p[5], p[6], p[7])
-}
+	  SELECT org_id, id, $7, $2, $8 FROM webhook_endpoints
+	  WHERE org_id = $1 AND active
+	    AND ($2 = ANY (events) OR split_part($2, '.', 1) || '.*' = ANY (events) OR '*' = ANY (events))`
 
-// changeArgs are change c's parameters, in changeParams' order.
+// changeStatement is recordChange's statement.
+const changeStatement = `WITH ` + changeInsert
+
+// changeArgs are change c's parameters, in changeInsert's order.
 func changeArgs(orgID uuid.UUID, c service.Change) ([8]any, error) {
 	data, err := json.Marshal(c.Data)
 	if err != nil {

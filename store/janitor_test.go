@@ -6,7 +6,7 @@ import (
 
 	"github.com/google/uuid"
 
-	"wheelbench/service"
+	"wheelbench/service/background"
 	"wheelbench/store"
 	"wheelbench/store/storetest"
 )
@@ -39,7 +39,7 @@ func TestJanitorPrunesOnlyWhatExpired(t *testing.T) {
 			t.Fatal(err)
 		}
 	}
-	service.PruneOnce(ctx, st, service.DefaultRetention, nil)
+	background.PruneOnce(ctx, st, background.DefaultRetention, nil)
 	count := func(q string) int {
 		var n int
 		if err := pool.QueryRow(ctx, q, org).Scan(&n); err != nil {

@@ -2,7 +2,9 @@ package store
 
 import (
 	"context"
+	"encoding/json"
 	"errors"
+	"fmt"
 
 	"github.com/google/uuid"
 	"github.com/jackc/pgx/v5"
@@ -12,20 +14,36 @@ import (
 
 const partColumns = `org_id, id, kind, sku, name, price_minor, currency, dimensions, version, created_at, updated_at`
 
+// scanPart reads a part row; its dimensions column holds the JSON of the
+// value PartKind.NewDimensions makes for its kind.
 func scanPart(row pgx.CollectableRow) (service.Part, error) {
 	var p service.Part
 	var kind string
-	err := row.Scan(&p.OrgID, &p.ID, &kind, &p.SKU, &p.Name, &p.PriceMinor, &p.Currency, &p.Dimensions, &p.Version, &p.CreatedAt, &p.UpdatedAt)
+	var dims []byte
+	err := row.Scan(&p.OrgID, &p.ID, &kind, &p.SKU, &p.Name, &p.PriceMinor, &p.Currency, &dims, &p.Version, &p.CreatedAt, &p.UpdatedAt)
+	if err != nil {
+		return p, err
+	}
 	p.Kind = service.PartKind(kind)
-	return p, err
+	if p.Dimensions = p.Kind.NewDimensions(); p.Dimensions == nil {
+		return p, fmt.Errorf("part %s: unknown kind %q", p.ID, kind)
+	}
+	if err := json.Unmarshal(dims, p.Dimensions); err != nil {
+		return p, fmt.Errorf("part %s dimensions: %w", p.ID, err)
+	}
+	return p, nil
 }
 
 // CreatePart inserts p and its change-feed row.
 func (s *Store) CreatePart(ctx context.Context, p service.Part) (err error) {
 	defer wrap(&err, "create part")
 	const q = `INSERT INTO parts (` + partColumns + `) VALUES ($1, $2, $3, $4, $5, $6, $7, $8, $9, $10, $11)`
+	dims, err := json.Marshal(p.Dimensions)
+	if err != nil {
+		return err
+	}
 	return s.inTx(ctx, func(tx pgx.Tx) error {
-		if _, err := tx.Exec(ctx, q, p.OrgID, p.ID, string(p.Kind), p.SKU, p.Name, p.PriceMinor, p.Currency, []byte(p.Dimensions), p.Version, p.CreatedAt, p.UpdatedAt); err != nil {
+		if _, err := tx.Exec(ctx, q, p.OrgID, p.ID, string(p.Kind), p.SKU, p.Name, p.PriceMinor, p.Currency, dims, p.Version, p.CreatedAt, p.UpdatedAt); err != nil {
 			return err
 		}
 		return recordChange(ctx, tx, p.OrgID, service.Change{Type: "part.created", ResourceID: p.ID, Data: p})
@@ -49,12 +67,15 @@ func (s *Store) ListParts(ctx context.Context, orgID uuid.UUID, f service.PartFi
 	return pgx.CollectRows(rows, scanPart)
 }
 
-// UpdatePart applies p when the part is still at version.
-func (s *Store) UpdatePart(ctx context.Context, orgID, id uuid.UUID, version int64, p service.PartPatch) (out service.Part, err error) {
+// UpdatePart applies p and, when not nil, the new dimensions when the part
+// is still at version.
+func (s *Store) UpdatePart(ctx context.Context, orgID, id uuid.UUID, version int64, p service.PartPatch, newDims any) (out service.Part, err error) {
 	defer wrap(&err, "update part")
 	var dims []byte
-	if p.Dimensions != nil {
-		dims = p.Dimensions
+	if newDims != nil {
+		if dims, err = json.Marshal(newDims); err != nil {
+			return out, err
+		}
 	}
 	const q = `UPDATE parts SET sku = COALESCE($4, sku), name = COALESCE($5, name),
 	    price_minor = COALESCE($6, price_minor), currency = COALESCE($7, currency),

@@ -108,9 +108,10 @@ func (s *Store) GetQuote(ctx context.Context, orgID, id uuid.UUID) (q service.Qu
 }
 
 // AcceptQuote implements service.Store. The quote row is locked first, so
-// two accepts of one quote serialise; each stock row is decremented only
-// where it holds enough (the CHECK constraint is a second guard).
-func (s *Store) AcceptQuote(ctx context.Context, orgID, id uuid.UUID, now time.Time) (q service.Quote, err error) {
+// two accepts of one quote serialise and check judges the quote as it is
+// when accepted; each stock row is decremented only where it holds enough
+// (the CHECK constraint is a second guard).
+func (s *Store) AcceptQuote(ctx context.Context, orgID, id uuid.UUID, now time.Time, check func(service.Quote) error) (q service.Quote, err error) {
 	defer wrap(&err, "accept quote")
 	err = s.inTx(ctx, func(tx pgx.Tx) error {
 		rows, _ := tx.Query(ctx, `SELECT `+quoteColumns+` FROM quotes WHERE org_id = $1 AND id = $2 FOR UPDATE`, orgID, id)
@@ -118,13 +119,8 @@ func (s *Store) AcceptQuote(ctx context.Context, orgID, id uuid.UUID, now time.T
 		if err != nil {
 			return err
 		}
-		switch {
-		case q.Status == service.QuoteAccepted:
-			return fmt.Errorf("%w: the quote is already accepted", service.ErrConflict)
-		case q.Status != service.QuoteOpen:
-			return fmt.Errorf("%w: the quote was superseded by a newer one", service.ErrConflict)
-		case now.After(q.ValidUntil):
-			return fmt.Errorf("%w: the quote expired on %s; ask for a new one", service.ErrConflict, q.ValidUntil.Format(time.DateOnly))
+		if err := check(q); err != nil {
+			return err
 		}
 		for _, n := range q.StockNeeds {
 			tag, err := tx.Exec(ctx, `UPDATE part_stock SET quantity = quantity - $5

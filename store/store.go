@@ -18,6 +18,7 @@ import (
 	"github.com/jackc/pgx/v5/pgxpool"
 
 	"wheelbench/service"
+	"wheelbench/service/background"
 )
 
 // querier is what both *pgxpool.Pool and pgx.Tx offer.
@@ -32,7 +33,11 @@ type Store struct {
 	pool *pgxpool.Pool
 }
 
-var _ service.Store = (*Store)(nil)
+var (
+	_ service.Store     = (*Store)(nil)
+	_ background.Outbox = (*Store)(nil)
+	_ background.Pruner = (*Store)(nil)
+)
 
 // New returns a Store over pool.
 func New(pool *pgxpool.Pool) *Store { return &Store{pool: pool} }

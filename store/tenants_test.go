@@ -9,7 +9,7 @@ import (
 )
 
 // TestTenantsAreKept: organisations and locations cannot be deleted,
-// truncated or given another id (the triggers of migration 00009), so
+// truncated or given another id (the triggers of migration 00001), so
 // every row that names one goes on naming it.
 func TestTenantsAreKept(t *testing.T) {
 	ctx := context.Background()
@@ -47,7 +47,7 @@ func TestTenantsAreKept(t *testing.T) {
 
 // TestTenantKeysInTheSchema: the database itself refuses a build whose
 // location is another organisation's (or none) and a change of an unknown
-// organisation — foreign keys (migration 00010), not only the service's
+// organisation — foreign keys (migrations 00002 and 00004), not only the service's
 // check before the insert.
 func TestTenantKeysInTheSchema(t *testing.T) {
 	ctx := context.Background()

@@ -11,6 +11,7 @@ import (
 	"github.com/jackc/pgx/v5"
 
 	"wheelbench/service"
+	"wheelbench/service/tension"
 )
 
 const toolColumns = `org_id, id, location_id, label, serial, unit_mm, measured_span_mm, notes, version, created_at, updated_at`
@@ -94,7 +95,7 @@ func scanCalibration(row pgx.CollectableRow) (service.Calibration, error) {
 	if err := json.Unmarshal(cols, &c.Columns); err != nil {
 		return c, fmt.Errorf("calibration %s columns: %w", c.ID, err)
 	}
-	c.Model = new(service.TensionModel)
+	c.Model = new(tension.Model)
 	if err := json.Unmarshal(model, c.Model); err != nil {
 		return c, fmt.Errorf("calibration %s model (layout %d): %w", c.ID, modelVersion, err)
 	}
@@ -190,7 +191,7 @@ func (s *Store) LocationWithCalibration(ctx context.Context, orgID, locationID u
 		if err := json.Unmarshal(cols, &cal.Columns); err != nil {
 			return loc, err
 		}
-		cal.Model = new(service.TensionModel)
+		cal.Model = new(tension.Model)
 		if err := json.Unmarshal(model, cal.Model); err != nil {
 			return loc, err
 		}

@@ -9,6 +9,7 @@ import (
 	"github.com/jackc/pgx/v5"
 
 	"wheelbench/service"
+	"wheelbench/service/background"
 )
 
 const endpointColumns = `org_id, id, url, events, description, active, disabled_reason, version, created_at, updated_at`
@@ -93,7 +94,7 @@ func (s *Store) DeleteWebhookEndpoint(ctx context.Context, orgID, id uuid.UUID) 
 // get their attempt counted and next_attempt_at moved lease ahead (the
 // lease). Due-ness and leases use the database's clock, one for every
 // replica.
-func (s *Store) ClaimWebhookDeliveries(ctx context.Context, n int, lease time.Duration) (ds []service.WebhookDelivery, err error) {
+func (s *Store) ClaimWebhookDeliveries(ctx context.Context, n int, lease time.Duration) (ds []background.Delivery, err error) {
 	defer wrap(&err, "claim webhook deliveries")
 	const q = `WITH due AS (
 	    SELECT d.id FROM webhook_deliveries d
@@ -108,8 +109,8 @@ func (s *Store) ClaimWebhookDeliveries(ctx context.Context, n int, lease time.Du
 	  WHERE d.id = due.id AND e.org_id = d.org_id AND e.id = d.endpoint_id
 	  RETURNING d.id, d.org_id, d.endpoint_id, d.event_id, d.type, d.body, d.attempts, e.url, e.secret`
 	rows, _ := s.pool.Query(ctx, q, n, lease.Seconds())
-	return pgx.CollectRows(rows, func(row pgx.CollectableRow) (service.WebhookDelivery, error) {
-		var d service.WebhookDelivery
+	return pgx.CollectRows(rows, func(row pgx.CollectableRow) (background.Delivery, error) {
+		var d background.Delivery
 		err := row.Scan(&d.ID, &d.OrgID, &d.EndpointID, &d.EventID, &d.Type, &d.Body, &d.Attempt, &d.URL, &d.Secret)
 		return d, err
 	})
@@ -118,26 +119,26 @@ func (s *Store) ClaimWebhookDeliveries(ctx context.Context, n int, lease time.Du
 // FinishWebhookDelivery implements service.Store. Every update is fenced
 // by (status pending, attempts = the claim's attempt), so the outcome of a
 // claim whose lease ran out and was taken over is dropped.
-func (s *Store) FinishWebhookDelivery(ctx context.Context, r service.WebhookResult) (recorded bool, err error) {
+func (s *Store) FinishWebhookDelivery(ctx context.Context, r background.Result) (recorded bool, err error) {
 	defer wrap(&err, "finish webhook delivery")
 	d := r.Delivery
 	const fence = ` WHERE id = $1 AND attempts = $2 AND status = 'pending'`
 	switch r.Outcome {
-	case service.OutcomeDelivered:
+	case background.OutcomeDelivered:
 		const q = `UPDATE webhook_deliveries SET status = 'delivered', finished_at = now(), last_status = $3, last_error = ''` + fence
 		tag, err := s.pool.Exec(ctx, q, d.ID, d.Attempt, r.Status)
 		return tag.RowsAffected() == 1, err
-	case service.OutcomeRetry:
+	case background.OutcomeRetry:
 		const q = `UPDATE webhook_deliveries SET next_attempt_at = now() + make_interval(secs => $5),
 		    last_status = nullif($3, 0), last_error = $4` + fence
 		tag, err := s.pool.Exec(ctx, q, d.ID, d.Attempt, r.Status, r.Error, r.RetryIn.Seconds())
 		return tag.RowsAffected() == 1, err
-	case service.OutcomeFailed:
+	case background.OutcomeFailed:
 		const q = `UPDATE webhook_deliveries SET status = 'failed', finished_at = now(),
 		    last_status = nullif($3, 0), last_error = $4` + fence
 		tag, err := s.pool.Exec(ctx, q, d.ID, d.Attempt, r.Status, r.Error)
 		return tag.RowsAffected() == 1, err
-	case service.OutcomeGone:
+	case background.OutcomeGone:
 		err = s.inTx(ctx, func(tx pgx.Tx) error {
 			const q = `UPDATE webhook_deliveries SET status = 'failed', finished_at = now(), last_status = 410,
 			    last_error = 'the receiver answered 410 Gone'` + fence
@@ -163,7 +164,7 @@ func (s *Store) FinishWebhookDelivery(ctx context.Context, r service.WebhookResu
 }
 
 // ReleaseWebhookDeliveries implements service.Store.
-func (s *Store) ReleaseWebhookDeliveries(ctx context.Context, ds []service.WebhookDelivery) (err error) {
+func (s *Store) ReleaseWebhookDeliveries(ctx context.Context, ds []background.Delivery) (err error) {
 	defer wrap(&err, "release webhook deliveries")
 	ids := make([]int64, len(ds))
 	attempts := make([]int32, len(ds))

@@ -12,6 +12,8 @@ import (
 	"github.com/jackc/pgx/v5/pgxpool"
 
 	"wheelbench/service"
+	"wheelbench/service/background"
+	"wheelbench/service/fit"
 	"wheelbench/store"
 	"wheelbench/store/storetest"
 )
@@ -166,7 +168,7 @@ func TestOutcomeFencedByAttempt(t *testing.T) {
 	if len(second) != 1 || second[0].Attempt != 2 || second[0].EventID != first[0].EventID {
 		t.Fatalf("after the lease: %+v, want attempt 2 with event id %s", second, first[0].EventID)
 	}
-	ok, err := f.st.FinishWebhookDelivery(ctx, service.WebhookResult{Delivery: first[0], Outcome: service.OutcomeDelivered, Status: 200})
+	ok, err := f.st.FinishWebhookDelivery(ctx, background.Result{Delivery: first[0], Outcome: background.OutcomeDelivered, Status: 200})
 	if err != nil || ok {
 		t.Fatalf("stale claim's outcome recorded=%v err=%v, want dropped", ok, err)
 	}
@@ -177,7 +179,7 @@ func TestOutcomeFencedByAttempt(t *testing.T) {
 	if err != nil || len(third) != 1 || third[0].Attempt != 2 {
 		t.Fatalf("after release: %+v %v, want attempt 2 again (the released one uncounted)", third, err)
 	}
-	ok, err = f.st.FinishWebhookDelivery(ctx, service.WebhookResult{Delivery: third[0], Outcome: service.OutcomeDelivered, Status: 204})
+	ok, err = f.st.FinishWebhookDelivery(ctx, background.Result{Delivery: third[0], Outcome: background.OutcomeDelivered, Status: 204})
 	if err != nil || !ok || f.count(t, "delivered") != 1 {
 		t.Fatalf("recorded=%v err=%v delivered=%d", ok, err, f.count(t, "delivered"))
 	}
@@ -195,7 +197,7 @@ func TestGoneDisablesEndpoint(t *testing.T) {
 	if err != nil || len(ds) != 1 {
 		t.Fatal(ds, err)
 	}
-	ok, err := f.st.FinishWebhookDelivery(ctx, service.WebhookResult{Delivery: ds[0], Outcome: service.OutcomeGone, Status: 410})
+	ok, err := f.st.FinishWebhookDelivery(ctx, background.Result{Delivery: ds[0], Outcome: background.OutcomeGone, Status: 410})
 	if err != nil || !ok {
 		t.Fatal(ok, err)
 	}
@@ -246,7 +248,7 @@ func TestOutboxMatchAgreesWithMatchesEvent(t *testing.T) {
 		t.Fatal(err)
 	}
 	if err := f.st.CreatePart(ctx, service.Part{ID: uuid.Must(uuid.NewV7()), OrgID: f.org, Kind: service.PartWasher, SKU: "W1",
-		Name: "washer", Currency: "EUR", Dimensions: []byte(`{}`), Version: 1, CreatedAt: time.Now(), UpdatedAt: time.Now()}); err != nil {
+		Name: "washer", Currency: "EUR", Dimensions: &fit.Washer{}, Version: 1, CreatedAt: time.Now(), UpdatedAt: time.Now()}); err != nil {
 		t.Fatal(err)
 	}
 	rows, err := f.pool.Query(ctx, `SELECT endpoint_id, type FROM webhook_deliveries`)

@@ -460,7 +460,7 @@ func aimsAndTool(v *view, s service.BuildSheet, snap service.BuildSnapshot, side
 			strconv.FormatFloat(math.Round(n/tension.NewtonsPerKgf*10)/10, 'f', 1, 64))
 	}
 	tr := snap.TargetReadings
-	if tr == nil || s.Aims == nil {
+	if tr == nil {
 		v.ToolNone = "No calibrated tensiometer at " + locationName(s.Location) + " when this build was computed: this sheet has no aim readings."
 		v.Cautions = append(v.Cautions, "No aim readings: there was no calibrated tensiometer at this location when the build was computed. Tension to the target tensions below with a calibrated tool, or add one and create the build again.")
 		for _, side := range sideNames {
@@ -496,7 +496,7 @@ func aimsAndTool(v *view, s service.BuildSheet, snap service.BuildSnapshot, side
 	sec := spoke.Section{Profile: spoke.Profile(ms.Profile), DiameterMM: ms.DiameterMM, WidthMM: ms.WidthMM, ThicknessMM: ms.ThicknessMM}
 	v.Section = "Measure on " + where + ", " + sectionWords(sec) + "."
 
-	aims := map[string]service.SheetAim{"left": s.Aims.Left, "right": s.Aims.Right}
+	aims := map[string]service.Aim{"left": tr.Left, "right": tr.Right}
 	for _, side := range sideNames {
 		a := aims[side]
 		av := aimView{Side: title(side), Tension: tensionWords(targets[side])}

@@ -82,9 +82,12 @@ func wheel(stock *geometry.Stock) fit.Input {
 		Crosses: geometry.Cross{Left: &three, Right: &three}, TargetTensionN: 1100, Stock: stock, IncludeLacing: true}
 }
 
+// sideAims are the aim readings of both sides of a test build.
+type sideAims struct{ Left, Right service.Aim }
+
 // sheetFor checks the wheel with the fit rules, as a build does, and
 // wraps the report as the service would read it for the sheet.
-func sheetFor(t *testing.T, in fit.Input, source string, aims *service.SheetAims) service.BuildSheet {
+func sheetFor(t *testing.T, in fit.Input, source string, aims *sideAims) service.BuildSheet {
 	t.Helper()
 	rep, err := fit.Check(in, fit.DefaultOptions())
 	if err != nil {
@@ -93,7 +96,7 @@ func sheetFor(t *testing.T, in fit.Input, source string, aims *service.SheetAims
 	loc := service.Location{ID: uuid.New(), Name: "Back bench (test)", Code: "BB", Timezone: "Europe/Lisbon"}
 	snap := service.BuildSnapshot{Resolved: in, StockSource: source, Compatibility: rep,
 		TargetTensionsN: service.Sides{Left: rep.Left.TensionN, Right: rep.Right.TensionN}, Cautions: rep.Cautions}
-	s := service.BuildSheet{Location: loc, Aims: aims,
+	s := service.BuildSheet{Location: loc,
 		Build: service.Build{ID: uuid.New(), LocationID: loc.ID, ExternalRef: "ORDER-17", Status: service.BuildDraft, Snapshot: snap,
 			CreatedAt: time.Date(2026, 3, 4, 9, 30, 0, 0, time.UTC)}}
 	for _, role := range []service.PartKind{service.PartHub, service.PartRim, service.PartSpoke, service.PartNipple} {
@@ -101,7 +104,7 @@ func sheetFor(t *testing.T, in fit.Input, source string, aims *service.SheetAims
 	}
 	if aims != nil {
 		snap.TargetReadings = &service.TargetReadings{ToolID: uuid.New(), CalibrationID: uuid.New(),
-			MeasuredSection: service.MeasuredSection{Name: "body", Profile: "round", DiameterMM: 2}}
+			MeasuredSection: service.MeasuredSection{Name: "body", Profile: "round", DiameterMM: 2}, Left: aims.Left, Right: aims.Right}
 		s.Build.Snapshot = snap
 		s.Tool = &service.Tool{Label: "Test tensiometer", Serial: "T-9", UnitMM: 0.01, LocationID: loc.ID}
 		s.Calibration = &service.Calibration{Version: 3, Source: "maker_table", CreatedAt: time.Date(2026, 1, 2, 0, 0, 0, 0, time.UTC)}
@@ -156,7 +159,7 @@ func TestSheetAims(t *testing.T) {
 	shaky := &tension.Target{TensionN: 652.3, TensionKgf: 652.3 / tension.NewtonsPerKgf, Reading: 266.49, ReadingInterval: [2]float64{264.2, 268.7},
 		Reliable: false, Status: tension.StatusExtrapolated,
 		Warnings: []tension.Warning{{Code: "result_unreliable", Severity: "warning", Message: "the 95 % interval is ±40 N (6.1 % of the tension, beyond 5 %)"}}}
-	s := sheetFor(t, wheel(&geometry.Stock{IncrementMM: fp(2)}), "spec", &service.SheetAims{Right: service.SheetAim{Target: ok}, Left: service.SheetAim{Target: shaky}})
+	s := sheetFor(t, wheel(&geometry.Stock{IncrementMM: fp(2)}), "spec", &sideAims{Right: service.Aim{Target: ok}, Left: service.Aim{Target: shaky}})
 	_, text := render(t, s, A4)
 	for _, want := range []string{
 		"aim 288 dial units", "expect 286–289 (95 % interval)", "target 1100 N (112.2 kgf)", "interpolated within the calibration",
@@ -173,7 +176,7 @@ func TestSheetAims(t *testing.T) {
 		t.Error("the unreliable reading is printed as an aim")
 	}
 
-	s.Aims.Left = service.SheetAim{Refused: "the calibration has no column of this material"}
+	s.Build.Snapshot.TargetReadings.Left = service.Aim{Refused: "the calibration has no column of this material"}
 	_, text = render(t, s, A4)
 	if c := strings.Count(text, "NO AIM READING"); c != 1 || !strings.Contains(text, "the calibration has no column of this material") {
 		t.Errorf("a refused side: NO AIM READING %d times, reason missing?\n%s", c, text)
@@ -243,7 +246,7 @@ func TestSheetStockAndParts(t *testing.T) {
 // cautions; a catalog washer a change proposes is named by SKU.
 func TestSheetRecordsThatMoved(t *testing.T) {
 	ok := &tension.Target{TensionN: 1100, Reading: 287.62, ReadingInterval: [2]float64{286.4, 288.81}, Reliable: true, Status: tension.StatusCalibrated}
-	s := sheetFor(t, wheel(&geometry.Stock{IncrementMM: fp(2)}), "spec", &service.SheetAims{Right: service.SheetAim{Target: ok}, Left: service.SheetAim{Target: ok}})
+	s := sheetFor(t, wheel(&geometry.Stock{IncrementMM: fp(2)}), "spec", &sideAims{Right: service.Aim{Target: ok}, Left: service.Aim{Target: ok}})
 	s.Tool.LocationID = uuid.New()
 	gone := uuid.New()
 	s.Parts[0] = service.SheetPart{Role: service.PartHub, CatalogID: &gone}

@@ -17,6 +17,7 @@ import (
 
 	"wheelbench/api"
 	"wheelbench/service"
+	"wheelbench/service/background"
 	"wheelbench/service/webhook"
 	"wheelbench/store"
 )
@@ -93,11 +94,11 @@ func serve(ctx context.Context, cfg config, getenv func(string) string, log *slo
 		MaxHeaderBytes:    64 << 10,
 		BaseContext:       func(net.Listener) context.Context { return context.WithoutCancel(ctx) },
 	}
-	dispatcher, err := a.svc.NewDispatcher(service.DispatcherConfig{
-		Sender:   api.NewWebhookSender(cfg.WebhookAllowPrivate, 0),
+	dispatcher, err := background.NewDispatcher(a.st, log, background.Config{
+		Sender:   background.NewHTTPSender(cfg.WebhookAllowPrivate, 0),
 		Poll:     cfg.WebhookPoll,
 		Retry:    webhook.RetryConfig{Window: cfg.WebhookRetryWindow},
-		Observer: api.NewWebhookMetrics(reg),
+		Observer: background.NewMetrics(reg),
 	})
 	if err != nil {
 		return err
@@ -114,9 +115,9 @@ func serve(ctx context.Context, cfg config, getenv func(string) string, log *slo
 	go func() { defer close(dispatched); dispatcher.Run(dctx) }()
 	log.Info("webhook dispatcher started", slog.Duration("poll", cfg.WebhookPoll),
 		slog.Duration("retry_window", cfg.WebhookRetryWindow), slog.Bool("allow_private", cfg.WebhookAllowPrivate))
-	retention := service.DefaultRetention
+	retention := background.DefaultRetention
 	retention.Changes = cfg.ChangeRetention
-	go service.RunJanitor(dctx, a.st, retention, log)
+	go background.RunJanitor(dctx, a.st, retention, log)
 	log.Info("serving", slog.String("addr", ln.Addr().String()))
 	errc := make(chan error, 1)
 	go func() { errc <- hs.Serve(ln) }()

@@ -23,7 +23,7 @@ import (
 	"syscall"
 	"time"
 
-	"wheelbench/service"
+	"wheelbench/service/background"
 )
 
 func main() {
@@ -69,7 +69,7 @@ type config struct {
 
 func loadConfig(getenv func(string) string) (config, error) {
 	c := config{Addr: ":8080", ShutdownTimeout: 20 * time.Second, RequestTimeout: 30 * time.Second,
-		WebhookRetryWindow: 72 * time.Hour, WebhookPoll: time.Second, ChangeRetention: service.DefaultRetention.Changes}
+		WebhookRetryWindow: 72 * time.Hour, WebhookPoll: time.Second, ChangeRetention: background.DefaultRetention.Changes}
 	if v := getenv("WHEELBENCH_ADDR"); v != "" {
 		c.Addr = v
 	}

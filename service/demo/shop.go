@@ -2,14 +2,16 @@ package demo
 
 import (
 	"context"
-	"encoding/json"
 	"errors"
 	"fmt"
 
 	"github.com/google/uuid"
 
 	"wheelbench/service"
+	"wheelbench/service/fit"
+	"wheelbench/service/geometry"
 	"wheelbench/service/quote"
+	"wheelbench/service/spoke"
 )
 
 // The demo shop's catalog, stock, price list and three builds: an e-cargo
@@ -22,62 +24,82 @@ type demoPart struct {
 	sku   string
 	name  string
 	price int64
-	dims  any
+	dims  any // the value kind.NewDimensions makes, filled
+}
+
+func fp(v float64) *float64 { return &v }
+func ip(v int) *int         { return &v }
+
+// flange is a demo hub flange: hole circle, centre to flange, hole and
+// thickness, mm.
+func flange(pcd, c2f, hole, thick float64) geometry.Flange {
+	return geometry.Flange{PCDMM: pcd, CenterToFlangeMM: c2f, HoleDiameterMM: fp(hole), ThicknessMM: fp(thick)}
 }
 
 var demoParts = []demoPart{
-	{service.PartHub, "DEMO-HUB-MOTOR36", "Cargo hub motor, 36 holes (invented)", 38000, map[string]any{
-		"holes": 36, "kind": "motor", "type": "j_bend", "spacing_mm": 135,
-		"left":  map[string]any{"pcd_mm": 154, "center_to_flange_mm": 22, "hole_diameter_mm": 3.0, "thickness_mm": 4.5},
-		"right": map[string]any{"pcd_mm": 154, "center_to_flange_mm": 22, "hole_diameter_mm": 3.0, "thickness_mm": 4.5}}},
-	{service.PartRim, "DEMO-RIM-406-36", "Cargo rim 406 BSD, 36 holes (invented)", 5200, map[string]any{
-		"holes": 36, "erd_mm": 390, "bsd_mm": 406, "inner_width_mm": 30, "hole_diameter_mm": 4.2, "max_tension_n": 1400, "spoke_hole_offset_mm": 0}},
-	{service.PartSpoke, "DEMO-SPK-13G", "Spoke 13 gauge stainless (invented)", 95, map[string]any{
-		"gauge": 13, "head_diameter_mm": 4.6, "elbow_length_mm": 5.8, "thread": map[string]any{"diameter_mm": 2.34, "tpi": 56}, "thread_length_mm": 10, "material": "stainless_steel"}},
-	{service.PartNipple, "DEMO-NIP-13G", "Nipple for 13 gauge, brass (invented)", 40, map[string]any{
-		"thread": map[string]any{"diameter_mm": 2.34, "tpi": 56}, "shank_diameter_mm": 4.5, "head_diameter_mm": 6.2, "length_mm": 14, "material": "brass"}},
-	{service.PartWasher, "DEMO-WSH-08", "Spoke-head washer 0.8 mm (invented)", 10, map[string]any{
-		"thickness_mm": 0.8, "inner_diameter_mm": 2.6, "outer_diameter_mm": 5.5, "where": "hub"}},
-	{service.PartTyre, "DEMO-TYRE-406-55", "Cargo tyre 55-406 (invented)", 3900, map[string]any{"bsd_mm": 406, "width_mm": 55}},
+	{service.PartHub, "DEMO-HUB-MOTOR36", "Cargo hub motor, 36 holes (invented)", 38000, &geometry.Hub{
+		Holes: 36, Kind: "motor", Type: "j_bend", SpacingMM: fp(135), Left: flange(154, 22, 3.0, 4.5), Right: flange(154, 22, 3.0, 4.5)}},
+	{service.PartRim, "DEMO-RIM-406-36", "Cargo rim 406 BSD, 36 holes (invented)", 5200, &geometry.Rim{
+		Holes: 36, ERDMM: 390, BSDMM: 406, InnerWidthMM: 30, HoleDiameterMM: 4.2, MaxTensionN: fp(1400)}},
+	{service.PartSpoke, "DEMO-SPK-13G", "Spoke 13 gauge stainless (invented)", 95, &spoke.Spec{
+		Gauge: ip(13), HeadDiameterMM: fp(4.6), ElbowLengthMM: fp(5.8), Thread: &spoke.Thread{DiameterMM: fp(2.34), TPI: fp(56)},
+		ThreadLengthMM: fp(10), Material: "stainless_steel"}},
+	{service.PartNipple, "DEMO-NIP-13G", "Nipple for 13 gauge, brass (invented)", 40, &fit.Nipple{
+		Thread: spoke.Thread{DiameterMM: fp(2.34), TPI: fp(56)}, ShankDiameterMM: 4.5, HeadDiameterMM: 6.2, LengthMM: 14, Material: "brass"}},
+	{service.PartWasher, "DEMO-WSH-08", "Spoke-head washer 0.8 mm (invented)", 10, &fit.Washer{
+		ThicknessMM: 0.8, InnerDiameterMM: 2.6, OuterDiameterMM: 5.5, Where: fit.AtHub}},
+	{service.PartTyre, "DEMO-TYRE-406-55", "Cargo tyre 55-406 (invented)", 3900, &fit.Tyre{BSDMM: 406, WidthMM: 55}},
 
-	{service.PartHub, "DEMO-HUB-TANDEM48", "Tandem rear hub, 48 holes (invented)", 21000, map[string]any{
-		"holes": 48, "kind": "tandem", "type": "j_bend", "spacing_mm": 145,
-		"left":  map[string]any{"pcd_mm": 60, "center_to_flange_mm": 35, "hole_diameter_mm": 2.6, "thickness_mm": 3.2},
-		"right": map[string]any{"pcd_mm": 60, "center_to_flange_mm": 21, "hole_diameter_mm": 2.6, "thickness_mm": 3.2}}},
-	{service.PartRim, "DEMO-RIM-559-48", "Touring rim 559 BSD, 48 holes (invented)", 6400, map[string]any{
-		"holes": 48, "erd_mm": 541, "bsd_mm": 559, "inner_width_mm": 25, "hole_diameter_mm": 4.2, "max_tension_n": 1300, "spoke_hole_offset_mm": 0}},
-	{service.PartSpoke, "DEMO-SPK-20", "Spoke 2.0 mm stainless (invented)", 70, map[string]any{
-		"diameter_mm": 2.0, "head_diameter_mm": 4.0, "elbow_length_mm": 3.0, "thread": map[string]any{"diameter_mm": 2.0, "tpi": 56}, "thread_length_mm": 10, "material": "stainless_steel"}},
-	{service.PartNipple, "DEMO-NIP-20", "Nipple 2.0 mm brass, 12 mm (invented)", 30, map[string]any{
-		"thread": map[string]any{"diameter_mm": 2.0, "tpi": 56}, "shank_diameter_mm": 3.9, "head_diameter_mm": 5.6, "length_mm": 12, "material": "brass"}},
-	{service.PartTyre, "DEMO-TYRE-559-50", "Touring tyre 50-559 (invented)", 4200, map[string]any{"bsd_mm": 559, "width_mm": 50}},
+	{service.PartHub, "DEMO-HUB-TANDEM48", "Tandem rear hub, 48 holes (invented)", 21000, &geometry.Hub{
+		Holes: 48, Kind: "tandem", Type: "j_bend", SpacingMM: fp(145), Left: flange(60, 35, 2.6, 3.2), Right: flange(60, 21, 2.6, 3.2)}},
+	{service.PartRim, "DEMO-RIM-559-48", "Touring rim 559 BSD, 48 holes (invented)", 6400, &geometry.Rim{
+		Holes: 48, ERDMM: 541, BSDMM: 559, InnerWidthMM: 25, HoleDiameterMM: 4.2, MaxTensionN: fp(1300)}},
+	{service.PartSpoke, "DEMO-SPK-20", "Spoke 2.0 mm stainless (invented)", 70, &spoke.Spec{
+		DiameterMM: fp(2.0), HeadDiameterMM: fp(4.0), ElbowLengthMM: fp(3.0), Thread: &spoke.Thread{DiameterMM: fp(2.0), TPI: fp(56)},
+		ThreadLengthMM: fp(10), Material: "stainless_steel"}},
+	{service.PartNipple, "DEMO-NIP-20", "Nipple 2.0 mm brass, 12 mm (invented)", 30, &fit.Nipple{
+		Thread: spoke.Thread{DiameterMM: fp(2.0), TPI: fp(56)}, ShankDiameterMM: 3.9, HeadDiameterMM: 5.6, LengthMM: 12, Material: "brass"}},
+	{service.PartTyre, "DEMO-TYRE-559-50", "Touring tyre 50-559 (invented)", 4200, &fit.Tyre{BSDMM: 559, WidthMM: 50}},
 
-	{service.PartHub, "DEMO-HUB-DYNAMO36", "Dynamo front hub, 36 holes (invented)", 16500, map[string]any{
-		"holes": 36, "kind": "bicycle", "type": "j_bend", "spacing_mm": 100,
-		"left":  map[string]any{"pcd_mm": 66, "center_to_flange_mm": 32, "hole_diameter_mm": 2.6, "thickness_mm": 3.0},
-		"right": map[string]any{"pcd_mm": 66, "center_to_flange_mm": 34, "hole_diameter_mm": 2.6, "thickness_mm": 3.0}}},
-	{service.PartRim, "DEMO-RIM-622-36", "Touring rim 622 BSD, 36 holes (invented)", 5900, map[string]any{
-		"holes": 36, "erd_mm": 603, "bsd_mm": 622, "inner_width_mm": 21, "hole_diameter_mm": 4.2, "max_tension_n": 1300, "spoke_hole_offset_mm": 0}},
-	{service.PartTyre, "DEMO-TYRE-622-42", "Touring tyre 42-622 (invented)", 3600, map[string]any{"bsd_mm": 622, "width_mm": 42}},
+	{service.PartHub, "DEMO-HUB-DYNAMO36", "Dynamo front hub, 36 holes (invented)", 16500, &geometry.Hub{
+		Holes: 36, Kind: "bicycle", Type: "j_bend", SpacingMM: fp(100), Left: flange(66, 32, 2.6, 3.0), Right: flange(66, 34, 2.6, 3.0)}},
+	{service.PartRim, "DEMO-RIM-622-36", "Touring rim 622 BSD, 36 holes (invented)", 5900, &geometry.Rim{
+		Holes: 36, ERDMM: 603, BSDMM: 622, InnerWidthMM: 21, HoleDiameterMM: 4.2, MaxTensionN: fp(1300)}},
+	{service.PartTyre, "DEMO-TYRE-622-42", "Touring tyre 42-622 (invented)", 3600, &fit.Tyre{BSDMM: 622, WidthMM: 42}},
 }
 
+// demoBuild is a demo build: its parts by SKU (washers may be none), the
+// crosses per side, the target tension (N) and the frame spacing (mm).
 type demoBuild struct {
-	ref      string
-	location uuid.UUID
-	spec     map[string]any // part SKUs are replaced by their ids
-	quote    bool
+	ref                           string
+	location                      uuid.UUID
+	spokes                        int
+	hub, rim, spoke, nipple, tyre string
+	washers                       []string
+	crosses                       int
+	tensionN, frameMM             float64
+	quote                         bool
 }
 
 var demoBuilds = []demoBuild{
-	{"DEMO-CARGO-1", Locations[0].ID, map[string]any{"spoke_count": 36, "hub_id": "DEMO-HUB-MOTOR36", "rim_id": "DEMO-RIM-406-36",
-		"spoke_id": "DEMO-SPK-13G", "nipple_id": "DEMO-NIP-13G", "washer_ids": []any{"DEMO-WSH-08"}, "tyre_id": "DEMO-TYRE-406-55",
-		"crosses": map[string]any{"left": 1, "right": 1}, "target_tension_n": 1200, "frame_spacing_mm": 135}, true},
-	{"DEMO-TANDEM-1", Locations[1].ID, map[string]any{"spoke_count": 48, "hub_id": "DEMO-HUB-TANDEM48", "rim_id": "DEMO-RIM-559-48",
-		"spoke_id": "DEMO-SPK-20", "nipple_id": "DEMO-NIP-20", "tyre_id": "DEMO-TYRE-559-50",
-		"crosses": map[string]any{"left": 4, "right": 4}, "target_tension_n": 1150, "frame_spacing_mm": 145}, true},
-	{"DEMO-TOURING-1", Locations[2].ID, map[string]any{"spoke_count": 36, "hub_id": "DEMO-HUB-DYNAMO36", "rim_id": "DEMO-RIM-622-36",
-		"spoke_id": "DEMO-SPK-20", "nipple_id": "DEMO-NIP-20", "tyre_id": "DEMO-TYRE-622-42",
-		"crosses": map[string]any{"left": 3, "right": 3}, "target_tension_n": 1050, "frame_spacing_mm": 100}, false},
+	{"DEMO-CARGO-1", Locations[0].ID, 36, "DEMO-HUB-MOTOR36", "DEMO-RIM-406-36", "DEMO-SPK-13G", "DEMO-NIP-13G", "DEMO-TYRE-406-55",
+		[]string{"DEMO-WSH-08"}, 1, 1200, 135, true},
+	{"DEMO-TANDEM-1", Locations[1].ID, 48, "DEMO-HUB-TANDEM48", "DEMO-RIM-559-48", "DEMO-SPK-20", "DEMO-NIP-20", "DEMO-TYRE-559-50",
+		nil, 4, 1150, 145, true},
+	{"DEMO-TOURING-1", Locations[2].ID, 36, "DEMO-HUB-DYNAMO36", "DEMO-RIM-622-36", "DEMO-SPK-20", "DEMO-NIP-20", "DEMO-TYRE-622-42",
+		nil, 3, 1050, 100, false},
+}
+
+// spec is the build's spec with its parts named by their catalog ids.
+func (db demoBuild) spec(ids map[string]uuid.UUID) service.BuildSpec {
+	id := func(sku string) *uuid.UUID { v := ids[sku]; return &v }
+	s := service.BuildSpec{SpokeCount: db.spokes, HubID: id(db.hub), RimID: id(db.rim), SpokeID: id(db.spoke), NippleID: id(db.nipple),
+		TyreID: id(db.tyre), Crosses: geometry.Cross{Left: ip(db.crosses), Right: ip(db.crosses)}, TargetTensionN: db.tensionN,
+		FrameSpacingMM: fp(db.frameMM)}
+	for _, w := range db.washers {
+		s.WasherIDs = append(s.WasherIDs, ids[w])
+	}
+	return s
 }
 
 // demoShop loads the catalog, stock, price list and builds once; a second
@@ -93,8 +115,7 @@ func demoShop(ctx context.Context, svc *service.Service, p service.Principal) (p
 			ids[dp.sku] = found[0].ID
 			continue
 		}
-		dims, _ := json.Marshal(dp.dims)
-		pt, err := svc.CreatePart(ctx, p, service.PartInput{Kind: dp.kind, SKU: dp.sku, Name: dp.name, PriceMinor: dp.price, Currency: "EUR", Dimensions: dims})
+		pt, err := svc.CreatePart(ctx, p, service.PartInput{Kind: dp.kind, SKU: dp.sku, Name: dp.name, PriceMinor: dp.price, Currency: "EUR", Dimensions: dp.dims})
 		if err != nil {
 			return 0, 0, fmt.Errorf("demo part %s: %w", dp.sku, err)
 		}
@@ -121,23 +142,7 @@ func demoShop(ctx context.Context, svc *service.Service, p service.Principal) (p
 			builds++
 			continue
 		}
-		spec := map[string]any{}
-		for k, v := range db.spec {
-			switch x := v.(type) {
-			case string:
-				spec[k] = ids[x]
-			case []any:
-				list := []uuid.UUID{}
-				for _, s := range x {
-					list = append(list, ids[s.(string)])
-				}
-				spec[k] = list
-			default:
-				spec[k] = v
-			}
-		}
-		raw, _ := json.Marshal(spec)
-		b, err := svc.CreateBuild(ctx, p, service.BuildInput{Spec: raw, ExternalRef: db.ref, LocationID: db.location})
+		b, err := svc.CreateBuild(ctx, p, service.BuildInput{Spec: db.spec(ids), ExternalRef: db.ref, LocationID: db.location})
 		if err != nil {
 			return 0, 0, fmt.Errorf("demo build %s: %w", db.ref, err)
 		}

@@ -7,30 +7,31 @@ import (
 	"math"
 
 	"wheelbench/service"
+	"wheelbench/service/tension"
 )
 
 // demoToolParams is an INVENTED tensiometer: no real tool was measured.
 // Its parameters are plausible values for a three-point tool (a span of
 // about 5 cm, a plunger spring of a few tens of N/mm), and the demo's maker
 // table is generated from the tool model with them.
-var demoToolParams = service.ToolParams{SpanMM: 48, PreloadN: 95, SpringNPerMM: 22, ZeroMM: 1.6, StretchPerMM: 1.2e-3}
+var demoToolParams = tension.ToolParams{SpanMM: 48, PreloadN: 95, SpringNPerMM: 22, ZeroMM: 1.6, StretchPerMM: 1.2e-3}
 
 // demoTable is the invented maker table of the demo tools: round stainless
 // spokes of 1.5, 1.8, 2.0 and 2.3 mm × 400–1600 N in 100 N steps, readings
 // rounded to whole dial units (0.01 mm) as a printed table has them. The
 // demo's 13-gauge (2.3368 mm) and 2.6 mm spokes lie outside it, so their
 // conversions are extrapolated and carry cautions.
-func demoTable() ([]service.CalibrationColumn, error) {
-	var cols []service.CalibrationColumn
+func demoTable() ([]tension.Column, error) {
+	var cols []tension.Column
 	for _, d := range []float64{1.5, 1.8, 2.0, 2.3} {
-		spec := service.SpokeSpec{Profile: "round", DiameterMM: d, Material: "stainless_steel"}
-		col := service.CalibrationColumn{Spoke: spec}
+		spec := tension.SpokeSpec{Profile: "round", DiameterMM: d, Material: "stainless_steel"}
+		col := tension.Column{Spoke: spec}
 		for tn := 400.0; tn <= 1600; tn += 100 {
 			r, err := demoToolParams.Reading(spec, service.DefaultUnitMM, tn)
 			if err != nil {
 				return nil, err
 			}
-			col.Points = append(col.Points, service.CalibrationPoint{TensionN: tn, Reading: math.Round(r)})
+			col.Points = append(col.Points, tension.Point{TensionN: tn, Reading: math.Round(r)})
 		}
 		cols = append(cols, col)
 	}

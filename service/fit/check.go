@@ -1,12 +1,12 @@
 package fit
 
 import (
-	"errors"
 	"fmt"
 	"math"
 	"slices"
 	"strings"
 
+	"wheelbench/service/field"
 	"wheelbench/service/geometry"
 	"wheelbench/service/spoke"
 )
@@ -61,7 +61,7 @@ type Crosses struct {
 }
 
 // Check decides whether the parts of in make a wheel. It validates in
-// (FieldErrors naming members of the body), computes the geometry — a
+// (field errors naming members of the body), computes the geometry — a
 // side whose crosses pass the tangent is not an error here but the finding
 // lacing_wraps_flange, its lengths computed at its max_crosses — proposes
 // washers under the nipple heads when the heads would pull through (and
@@ -187,7 +187,7 @@ func computeGeometry(w geometry.Wheel) (geometry.Result, [2]bool, Crosses, error
 	}
 	var crosses Crosses
 	var rest []error
-	for _, fe := range fieldErrorsOf(err) {
+	for _, fe := range field.All(err) {
 		switch p := fe.Pointer; {
 		case fe.Unprocessable && p == "/crosses/left" && tangentOnly(w, 0):
 			wrapped[0] = true
@@ -255,26 +255,6 @@ func setCrosses(w *geometry.Wheel, k int, c *int) {
 	}
 }
 
-// fieldErrorsOf flattens an errors.Join tree of geometry field errors.
-func fieldErrorsOf(err error) []*geometry.FieldError {
-	var out []*geometry.FieldError
-	var walk func(error)
-	walk = func(e error) {
-		if j, ok := e.(interface{ Unwrap() []error }); ok {
-			for _, x := range j.Unwrap() {
-				walk(x)
-			}
-			return
-		}
-		var fe *geometry.FieldError
-		if errors.As(e, &fe) {
-			out = append(out, fe)
-		}
-	}
-	walk(err)
-	return out
-}
-
 // assumedInUse lists, sorted and once each, the assumed fields behind
 // warnings and errors.
 func assumedInUse(fs []Finding) []string {
@@ -306,7 +286,7 @@ type parts struct {
 }
 
 // resolveParts fills the spoke's optional dimensions with typical values
-// by gauge. It assumes Validate passed; it reports (as *FieldError, 422) a
+// by gauge. It assumes Validate passed; it reports (as *field.Error, 422) a
 // dimension that is needed and has no typical value for the spoke's size.
 func resolveParts(in Input) (parts, error) {
 	p := parts{assumed: map[string]bool{}}
@@ -324,7 +304,7 @@ func resolveParts(in Input) (parts, error) {
 			return typical
 		}
 		if needed {
-			errs = append(errs, unprocessable(pointer,
+			errs = append(errs, field.Unprocessable(pointer,
 				"needed for this check, and there is no typical value for a %.4g mm spoke", p.endMM))
 		}
 		return 0
@@ -352,7 +332,7 @@ func resolveParts(in Input) (parts, error) {
 	}
 	if p.threadTPI > 0 {
 		if _, ok := spoke.ThreadStressArea(p.endMM, p.threadMajorMM, p.threadTPI); !ok {
-			errs = append(errs, unprocessable("/spoke/thread/tpi",
+			errs = append(errs, field.Unprocessable("/spoke/thread/tpi",
 				"a %.4g mm spoke cannot carry a thread of %.4g per inch (the pitch is deeper than the thread)", p.endMM, p.threadTPI))
 		}
 	}

@@ -7,7 +7,7 @@
 // not import service/geometry: the spoke-length facts it needs arrive as a
 // Geometry value that the caller fills from its own spoke-length calculation.
 //
-// Use: decode the request body into an Input, call Validate (FieldErrors
+// Use: decode the request body into an Input, call Validate (field errors
 // naming the JSON pointer of each bad field), compute the geometry, then
 // Check. Every trade rule of thumb the rules rest on is a field of Options,
 // marked "common practice" or "from memory" where it is defined.

@@ -2,43 +2,18 @@ package fit
 
 import (
 	"errors"
-	"fmt"
 	"math"
 	"strconv"
 
+	"wheelbench/service/field"
 	"wheelbench/service/geometry"
 	"wheelbench/service/spoke"
 )
 
-// FieldError is one bad field of the request body. Pointer is an RFC 6901
-// JSON pointer into the body as the client sent it ("/hub/left/pcd_mm").
-// Unprocessable is false for malformed or absurd values (HTTP 400: not
-// finite, not positive, out of any sane range, unknown name) and true for
-// well-formed values that cannot describe a buildable wheel (HTTP 422).
-// Several bad fields come back as errors.Join of several *FieldError.
-type FieldError struct {
-	Pointer       string
-	Message       string
-	Unprocessable bool
-}
-
-// Error returns "pointer: message".
-func (e *FieldError) Error() string { return e.Pointer + ": " + e.Message }
-
-// FieldPointer returns the JSON pointer of the bad field.
-func (e *FieldError) FieldPointer() string { return e.Pointer }
-
-// IsUnprocessable reports whether the field is well-formed but impossible.
-func (e *FieldError) IsUnprocessable() bool { return e.Unprocessable }
-
-func invalid(pointer, format string, a ...any) *FieldError {
-	return &FieldError{Pointer: pointer, Message: fmt.Sprintf(format, a...)}
-}
-
-func unprocessable(pointer, format string, a ...any) *FieldError {
-	return &FieldError{Pointer: pointer, Message: fmt.Sprintf(format, a...), Unprocessable: true}
-}
-
+// joinErrs joins bad fields: *field.Error values with pointers into the
+// body as the client sent it ("/hub/left/pcd_mm"), 400 for malformed or
+// absurd values (not finite, not positive, out of any sane range, unknown
+// name), 422 for well-formed values that cannot describe a buildable wheel.
 func joinErrs(errs []error) error {
 	if len(errs) == 1 {
 		return errs[0]
@@ -57,20 +32,20 @@ const (
 	maxSpokeCount = 200
 )
 
-// validator collects FieldErrors.
+// validator collects field errors.
 type validator struct{ errs []error }
 
-func (v *validator) add(e *FieldError) { v.errs = append(v.errs, e) }
+func (v *validator) add(e *field.Error) { v.errs = append(v.errs, e) }
 
 // size checks a required positive, finite dimension no larger than max.
 func (v *validator) size(pointer string, x, max float64) bool {
 	switch {
 	case math.IsNaN(x) || math.IsInf(x, 0):
-		v.add(invalid(pointer, "must be a finite number"))
+		v.add(field.Invalid(pointer, "must be a finite number"))
 	case x <= 0:
-		v.add(invalid(pointer, "must be positive (got %g)", x))
+		v.add(field.Invalid(pointer, "must be positive (got %g)", x))
 	case x > max:
-		v.add(invalid(pointer, "%g is not a plausible size (at most %g)", x, max))
+		v.add(field.Invalid(pointer, "%g is not a plausible size (at most %g)", x, max))
 	default:
 		return true
 	}
@@ -86,7 +61,7 @@ func (v *validator) optSize(pointer string, x *float64, max float64) {
 
 func (v *validator) count(pointer string, n, max int) bool {
 	if n <= 0 || n > max {
-		v.add(invalid(pointer, "must be between 1 and %d (got %d)", max, n))
+		v.add(field.Invalid(pointer, "must be between 1 and %d (got %d)", max, n))
 		return false
 	}
 	return true
@@ -97,7 +72,7 @@ func (v *validator) material(pointer string, name string) {
 		return
 	}
 	if _, ok := spoke.LookupMaterial(name); !ok {
-		v.add(invalid(pointer, "unknown material %q (one of %v)", name, spoke.MaterialNames()))
+		v.add(field.Invalid(pointer, "unknown material %q (one of %v)", name, spoke.MaterialNames()))
 	}
 }
 
@@ -105,7 +80,7 @@ func (v *validator) material(pointer string, name string) {
 // that the geometry takes as optional (flange holes and thickness, the
 // spoke, the nipple, the rim's holes and bead seat). The geometry
 // validates its own members when Check computes it. It returns nil or the
-// FieldErrors (joined).
+// field errors (joined).
 func Validate(in Input) error {
 	var v validator
 	v.count("/spoke_count", in.SpokeCount, maxSpokeCount)
@@ -119,12 +94,12 @@ func Validate(in Input) error {
 	}{{"left", h.Left}, {"right", h.Right}} {
 		p := "/hub/" + f.side
 		if f.f.HoleDiameterMM == nil {
-			v.add(invalid(p+"/hole_diameter_mm", "is required: the fit rules compare it with the spoke and its head"))
+			v.add(field.Invalid(p+"/hole_diameter_mm", "is required: the fit rules compare it with the spoke and its head"))
 		} else if v.size(p+"/hole_diameter_mm", *f.f.HoleDiameterMM, maxPartMM) && *f.f.HoleDiameterMM >= f.f.PCDMM && f.f.PCDMM > 0 {
-			v.add(unprocessable(p+"/hole_diameter_mm", "a flange hole cannot be as large as the flange's hole circle"))
+			v.add(field.Unprocessable(p+"/hole_diameter_mm", "a flange hole cannot be as large as the flange's hole circle"))
 		}
 		if f.f.ThicknessMM == nil {
-			v.add(invalid(p+"/thickness_mm", "is required: the fit rules compare it with the spoke's elbow"))
+			v.add(field.Invalid(p+"/thickness_mm", "is required: the fit rules compare it with the spoke's elbow"))
 		} else {
 			v.size(p+"/thickness_mm", *f.f.ThicknessMM, maxPartMM)
 		}
@@ -134,7 +109,7 @@ func Validate(in Input) error {
 	v.count("/rim/holes", r.Holes, maxSpokeCount)
 	bsdOK := v.size("/rim/bsd_mm", r.BSDMM, maxRimMM)
 	if bsdOK && r.ERDMM > 0 && r.ERDMM >= r.BSDMM {
-		v.add(unprocessable("/rim/erd_mm", "the effective rim diameter (%g mm) must be smaller than the bead seat diameter (%g mm)", r.ERDMM, r.BSDMM))
+		v.add(field.Unprocessable("/rim/erd_mm", "the effective rim diameter (%g mm) must be smaller than the bead seat diameter (%g mm)", r.ERDMM, r.BSDMM))
 	}
 	v.size("/rim/inner_width_mm", r.InnerWidthMM, maxRimMM)
 	v.size("/rim/hole_diameter_mm", r.HoleDiameterMM, maxPartMM)
@@ -142,13 +117,15 @@ func Validate(in Input) error {
 
 	if _, ps := in.Spoke.Resolve(true); len(ps) > 0 {
 		for _, p := range ps {
-			v.add(&FieldError{Pointer: "/spoke" + p.Pointer, Message: p.Message, Unprocessable: p.Unprocessable})
+			c := *p
+			c.Pointer = "/spoke" + p.Pointer
+			v.add(&c)
 		}
 	}
 
 	n := in.Nipple
 	for _, p := range n.Thread.CheckNippleThread("/nipple/thread") {
-		v.add(&FieldError{Pointer: p.Pointer, Message: p.Message, Unprocessable: p.Unprocessable})
+		v.add(p)
 	}
 	v.size("/nipple/shank_diameter_mm", n.ShankDiameterMM, maxPartMM)
 	v.size("/nipple/head_diameter_mm", n.HeadDiameterMM, maxPartMM)
@@ -156,7 +133,7 @@ func Validate(in Input) error {
 	v.optSize("/nipple/thread_length_mm", n.ThreadLengthMM, maxPartMM)
 	if n.ThreadStartMM != nil {
 		if x := *n.ThreadStartMM; math.IsNaN(x) || math.IsInf(x, 0) || x < 0 || x > maxPartMM {
-			v.add(invalid("/nipple/thread_start_mm", "must be a finite depth, zero or more"))
+			v.add(field.Invalid("/nipple/thread_start_mm", "must be a finite depth, zero or more"))
 		}
 	}
 	v.material("/nipple/material", n.Material)
@@ -167,10 +144,10 @@ func Validate(in Input) error {
 		inOK := v.size(p+"/inner_diameter_mm", w.InnerDiameterMM, maxPartMM)
 		outOK := v.size(p+"/outer_diameter_mm", w.OuterDiameterMM, maxPartMM)
 		if inOK && outOK && w.InnerDiameterMM >= w.OuterDiameterMM {
-			v.add(invalid(p+"/inner_diameter_mm", "a washer's bore must be smaller than its outside diameter"))
+			v.add(field.Invalid(p+"/inner_diameter_mm", "a washer's bore must be smaller than its outside diameter"))
 		}
 		if w.Where != "" && w.Where != AtHub && w.Where != AtRim {
-			v.add(invalid(p+"/where", "unknown place %q (hub or rim)", w.Where))
+			v.add(field.Invalid(p+"/where", "unknown place %q (hub or rim)", w.Where))
 		}
 	}
 

@@ -6,31 +6,17 @@ import (
 
 	"github.com/google/go-cmp/cmp"
 
-	"wheelbench/service/geometry"
+	"wheelbench/service/field"
 	"wheelbench/service/spoke"
 )
 
-// fieldErrors walks an errors.Join tree, as the HTTP layer does, taking
-// both this package's and the geometry's field errors.
+// fieldErrors lists the field errors of an errors.Join tree, as the HTTP
+// layer does (this package's and the geometry's are the one type).
 func fieldErrors(err error) []wantField {
 	var out []wantField
-	var walk func(error)
-	walk = func(e error) {
-		switch fe := e.(type) {
-		case *FieldError:
-			out = append(out, wantField{fe.Pointer, fe.Unprocessable})
-			return
-		case *geometry.FieldError:
-			out = append(out, wantField{fe.Pointer, fe.Unprocessable})
-			return
-		}
-		if j, ok := e.(interface{ Unwrap() []error }); ok {
-			for _, x := range j.Unwrap() {
-				walk(x)
-			}
-		}
+	for _, fe := range field.All(err) {
+		out = append(out, wantField{fe.Pointer, fe.Unprocessable})
 	}
-	walk(err)
 	return out
 }
 

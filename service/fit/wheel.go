@@ -32,6 +32,30 @@ func (j *judge) caution(s string) {
 
 var sideNames = [2]string{"left", "right"}
 
+// WheelResult is the spoke-length answer for one wheel: the geometry and the
+// rule set's findings and cautions on it.
+type WheelResult struct {
+	geometry.Result `json:",inline"`
+	// Findings are never nil (an empty list encodes as []).
+	Findings []Finding `json:"findings"`
+	// Cautions are plain sentences about results that can hurt a rider when
+	// wrong; never nil.
+	Cautions []string `json:"cautions"`
+}
+
+// ComputeWheel computes one wheel (geometry.Compute) and judges it
+// (AssessWheel). Bad or impossible input comes back as *field.Error values
+// (400 or 422), never as NaN or Inf.
+func ComputeWheel(w geometry.Wheel, opt Options) (WheelResult, error) {
+	res, err := geometry.Compute(w)
+	if err != nil {
+		return WheelResult{}, err
+	}
+	out := WheelResult{Result: res}
+	out.Findings, out.Cautions = AssessWheel(w, &out.Result, opt)
+	return out, nil
+}
+
 // AssessWheel judges a wheel's geometry alone (the spoke-length answer):
 // every rule whose facts the geometry has. res is geometry.Compute(w).
 // Slices are never nil.

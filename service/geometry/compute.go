@@ -47,7 +47,7 @@ func (o Options) withDefaults() Options {
 var defaultOptions = DefaultOptions()
 
 // Compute computes both sides of one wheel with DefaultOptions. Invalid or
-// impossible input returns a *FieldError or an errors.Join of them, and a
+// impossible input returns a *field.Error or an errors.Join of them, and a
 // zero Result. No NaN or Inf is ever returned.
 func Compute(w Wheel) (Result, error) { return compute(&w, &defaultOptions) }
 

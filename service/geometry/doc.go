@@ -10,7 +10,7 @@
 //
 // The package is pure: no context, no I/O, no logging, deterministic. It
 // imports the standard library and service/spoke only, and must not import
-// the HTTP, store or service layers. Bad input comes back as *FieldError
+// the HTTP, store or service layers. Bad input comes back as *field.Error
 // values (joined with errors.Join when several fields are wrong) that carry
 // an RFC 6901 pointer into the request body.
 package geometry

@@ -3,33 +3,19 @@ package geometry
 import (
 	"errors"
 	"strconv"
+
+	"wheelbench/service/field"
 )
 
-// FieldError is one bad input field. Pointer is an RFC 6901 JSON pointer into
-// the request body as the client sent it (for example "/crosses/left").
-// Unprocessable is false for malformed or absurd values (HTTP 400: a
-// non-positive size, NaN, an unknown enum value) and true for well-formed
-// input that describes a wheel that cannot be built (HTTP 422).
-type FieldError struct {
-	Pointer       string
-	Message       string
-	Unprocessable bool
-}
-
-// Error returns the pointer and the message.
-func (e *FieldError) Error() string { return e.Pointer + ": " + e.Message }
-
-// FieldPointer returns the RFC 6901 pointer of the offending field.
-func (e *FieldError) FieldPointer() string { return e.Pointer }
-
-// IsUnprocessable reports whether the input is well-formed but impossible.
-func (e *FieldError) IsUnprocessable() bool { return e.Unprocessable }
-
-// errList collects field errors; it allocates only when an error is added.
+// errList collects field errors (*field.Error: pointers into the request
+// body as the client sent it, such as "/crosses/left"; 400 for malformed or
+// absurd values — a non-positive size, NaN, an unknown enum value — and 422
+// for well-formed input that describes a wheel that cannot be built). It
+// allocates only when an error is added.
 type errList []error
 
 func (l *errList) bad(pointer, msg string) {
-	*l = append(*l, &FieldError{Pointer: pointer, Message: msg})
+	*l = append(*l, &field.Error{Pointer: pointer, Message: msg})
 }
 
 // at joins a pointer prefix and leaf. Callers on the success path pass the
@@ -38,7 +24,7 @@ func (l *errList) bad(pointer, msg string) {
 func at(prefix, leaf string) string { return prefix + leaf }
 
 func (l *errList) impossible(pointer, msg string) {
-	*l = append(*l, &FieldError{Pointer: pointer, Message: msg, Unprocessable: true})
+	*l = append(*l, &field.Error{Pointer: pointer, Message: msg, Unprocessable: true})
 }
 
 func (l errList) err() error {

@@ -9,7 +9,7 @@ import (
 )
 
 // checkOutcome is the contract every input must meet: either a valid,
-// finite, JSON-encodable result, or an error tree of *FieldError leaves
+// finite, JSON-encodable result, or an error tree of *field.Error leaves
 // with RFC 6901 pointers and messages.
 func checkOutcome(t *testing.T, w Wheel, res Result, err error) {
 	t.Helper()

@@ -5,6 +5,7 @@ import (
 	"math"
 	"reflect"
 	"testing"
+	"wheelbench/service/field"
 	"wheelbench/service/spoke"
 )
 
@@ -29,13 +30,13 @@ func contractWheel() Wheel {
 	}
 }
 
-// fieldErrors flattens an errors.Join tree into its *FieldError leaves.
-func fieldErrors(t *testing.T, err error) []*FieldError {
+// fieldErrors flattens an errors.Join tree into its *field.Error leaves.
+func fieldErrors(t *testing.T, err error) []*field.Error {
 	t.Helper()
-	var out []*FieldError
+	var out []*field.Error
 	var walk func(error)
 	walk = func(e error) {
-		var fe *FieldError
+		var fe *field.Error
 		if j, ok := e.(interface{ Unwrap() []error }); ok {
 			for _, x := range j.Unwrap() {
 				walk(x)
@@ -46,7 +47,7 @@ func fieldErrors(t *testing.T, err error) []*FieldError {
 			out = append(out, fe)
 			return
 		}
-		t.Errorf("error %v (%T) is not a *FieldError", e, e)
+		t.Errorf("error %v (%T) is not a *field.Error", e, e)
 	}
 	if err != nil {
 		walk(err)
@@ -56,10 +57,10 @@ func fieldErrors(t *testing.T, err error) []*FieldError {
 
 // hasFieldError reports whether err holds a FieldError at pointer with the
 // given kind.
-func hasFieldError(t *testing.T, err error, pointer string, unprocessable bool) *FieldError {
+func hasFieldError(t *testing.T, err error, pointer string, unprocessable bool) *field.Error {
 	t.Helper()
 	for _, fe := range fieldErrors(t, err) {
-		if fe.FieldPointer() == pointer && fe.IsUnprocessable() == unprocessable {
+		if fe.Pointer == pointer && fe.Unprocessable == unprocessable {
 			return fe
 		}
 	}

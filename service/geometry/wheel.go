@@ -347,7 +347,7 @@ func hubType(h Hub) string {
 }
 
 // resolve validates w and applies defaults. Every returned error is a
-// *FieldError or an errors.Join of them.
+// *field.Error or an errors.Join of them.
 func resolve(w *Wheel, o *Options) (resolved, error) {
 	var l errList
 	var r resolved
@@ -497,11 +497,9 @@ func (l *errList) spoke(sp *spoke.Spec, o *Options, r *resolved) {
 	}
 	res, ps := sp.Resolve(true)
 	for _, p := range ps {
-		if p.Unprocessable {
-			l.impossible("/spoke"+p.Pointer, p.Message)
-		} else {
-			l.bad("/spoke"+p.Pointer, p.Message)
-		}
+		c := *p
+		c.Pointer = "/spoke" + p.Pointer
+		*l = append(*l, &c)
 	}
 	if len(ps) > 0 {
 		return

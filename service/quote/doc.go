@@ -13,7 +13,7 @@
 // quantity × unit price, exact, in int64. Every amount, the subtotal, the tax
 // and the total must not exceed MaxAmountMinor (2^53 − 1, the largest integer
 // an IEEE 754 double — and so any JSON client — holds exactly); an input that
-// would pass it is refused with a FieldError (HTTP 400), never wrapped.
+// would pass it is refused with a field error (HTTP 400), never wrapped.
 //
 // Rounding rule, the only one: tax is charged once, on the subtotal, never
 // per line: tax = subtotal × tax_rate_ppm / 1 000 000, computed exactly as an
@@ -23,8 +23,8 @@
 // Tax rates are in parts per million (ppm) of the subtotal, 0 to 1 000 000:
 // 19 % is 190000, 8.875 % is 88750; basis points would not hold the latter.
 //
-// Errors. Compute returns either a Quote or *FieldError values (several joined
-// with errors.Join). A FieldError's Pointer is an RFC 6901 JSON pointer into
+// Errors. Compute returns either a Quote or *field.Error values (several joined
+// with errors.Join). A field error's Pointer is an RFC 6901 JSON pointer into
 // the Input as it encodes to JSON ("/spokes/1/quantity"); faults in the price
 // list are reported under "/price_list" ("/price_list/per_spoke_minor").
 package quote

@@ -7,7 +7,7 @@ import (
 
 // FuzzCompute varies quantities, prices, the rate, a spoke group, the
 // currency and the free text around a small build. Compute must either
-// refuse with FieldErrors only, each with an RFC 6901 pointer into the input
+// refuse with field errors only, each with an RFC 6901 pointer into the input
 // ("/…"), or return a quote that keeps every invariant checkQuote asserts
 // (amounts exact, sums exact, the rounding rule, the 2^53 − 1 limit, JSON
 // encodable). Seeds are in testdata/fuzz/FuzzCompute.
@@ -34,7 +34,7 @@ func FuzzCompute(f *testing.F) {
 			}
 			for _, fe := range fes {
 				if !strings.HasPrefix(fe.Pointer, "/") || fe.Message == "" {
-					t.Fatalf("FieldError without pointer or message: %#v", fe)
+					t.Fatalf("field error without pointer or message: %#v", fe)
 				}
 			}
 			return

@@ -6,6 +6,8 @@ import (
 	"slices"
 	"strconv"
 	"time"
+
+	"wheelbench/service/field"
 )
 
 // Line kinds.
@@ -80,7 +82,7 @@ type pricedLine struct {
 }
 
 // Compute prices one wheel: it validates in and pl, builds the lines,
-// multiplies, adds, and applies the tax rule. It returns *FieldError values
+// multiplies, adds, and applies the tax rule. It returns *field.Error values
 // (joined) and no Quote when anything is wrong: a malformed or absurd field
 // (400), a currency not known or differing between in and pl (422), or an
 // amount, subtotal or total past MaxAmountMinor (400, naming the price whose
@@ -91,7 +93,7 @@ func Compute(in Input, pl PriceList) (Quote, error) {
 	inOK := in.validate(&v)
 	plOK := pl.validate(&v, "/price_list")
 	if inOK && plOK && in.Currency != pl.Currency {
-		v.add(unprocessable("/currency", "quote currency %s differs from the price list's %s", in.Currency, pl.Currency))
+		v.add(field.Unprocessable("/currency", "quote currency %s differs from the price list's %s", in.Currency, pl.Currency))
 	}
 	if err := v.err(); err != nil {
 		return Quote{}, err
@@ -111,7 +113,7 @@ func Compute(in Input, pl PriceList) (Quote, error) {
 	for _, l := range lines {
 		amount, ok := mulAmount(l.Quantity, l.UnitPriceMinor)
 		if !ok {
-			v.add(invalid(l.blame, "%d × %d minor units is past the largest amount, %s", l.Quantity, l.UnitPriceMinor, limit))
+			v.add(field.Invalid(l.blame, "%d × %d minor units is past the largest amount, %s", l.Quantity, l.UnitPriceMinor, limit))
 			continue
 		}
 		l.AmountMinor = amount
@@ -119,7 +121,7 @@ func Compute(in Input, pl PriceList) (Quote, error) {
 		if sub, ok := addAmount(q.SubtotalMinor, amount); ok {
 			q.SubtotalMinor = sub
 		} else if len(v.errs) == 0 {
-			v.add(invalid(l.blame, "this line takes the subtotal past the largest amount, %s", limit))
+			v.add(field.Invalid(l.blame, "this line takes the subtotal past the largest amount, %s", limit))
 		}
 	}
 	if err := v.err(); err != nil {
@@ -127,12 +129,12 @@ func Compute(in Input, pl PriceList) (Quote, error) {
 	}
 	tax, ok := taxOf(q.SubtotalMinor, q.TaxRatePPM)
 	if !ok { // unreachable: rate ≤ 100 % keeps tax ≤ subtotal
-		return Quote{}, invalid("/tax_rate_ppm", "tax on %d minor units does not fit", q.SubtotalMinor)
+		return Quote{}, field.Invalid("/tax_rate_ppm", "tax on %d minor units does not fit", q.SubtotalMinor)
 	}
 	q.TaxMinor = tax
 	total, ok := addAmount(q.SubtotalMinor, q.TaxMinor)
 	if !ok {
-		return Quote{}, invalid("/tax_rate_ppm", "subtotal plus tax is past the largest amount, %s", limit)
+		return Quote{}, field.Invalid("/tax_rate_ppm", "subtotal plus tax is past the largest amount, %s", limit)
 	}
 	q.TotalMinor = total
 	return q, nil

@@ -2,48 +2,25 @@ package quote
 
 import (
 	"errors"
-	"fmt"
 	"strconv"
 	"unicode"
 	"unicode/utf8"
+
+	"wheelbench/service/field"
 )
 
-// FieldError is one bad field. Pointer is an RFC 6901 JSON pointer into the
-// Input as it encodes to JSON ("/spokes/1/quantity"), or into the PriceList
-// under "/price_list" when Compute reports it. Unprocessable is false for
-// malformed or absurd values (HTTP 400: negative, out of range, not a
-// currency code, an amount past MaxAmountMinor) and true for well-formed
-// values that cannot be quoted (HTTP 422: an unknown currency, currencies
-// that differ). Several bad fields come back as errors.Join of several
-// *FieldError.
-type FieldError struct {
-	Pointer       string
-	Message       string
-	Unprocessable bool
-}
+// Bad fields are *field.Error values. A Pointer is an RFC 6901 JSON pointer
+// into the Input as it encodes to JSON ("/spokes/1/quantity"), or into the
+// PriceList under "/price_list" when Compute reports it: 400 for malformed
+// or absurd values (negative, out of range, not a currency code, an amount
+// past MaxAmountMinor), 422 for well-formed values that cannot be quoted
+// (an unknown currency, currencies that differ). Several come back joined
+// with errors.Join.
 
-// Error returns "pointer: message".
-func (e *FieldError) Error() string { return e.Pointer + ": " + e.Message }
-
-// FieldPointer returns the JSON pointer of the bad field.
-func (e *FieldError) FieldPointer() string { return e.Pointer }
-
-// IsUnprocessable reports whether the field is well-formed but cannot be
-// quoted.
-func (e *FieldError) IsUnprocessable() bool { return e.Unprocessable }
-
-func invalid(pointer, format string, a ...any) *FieldError {
-	return &FieldError{Pointer: pointer, Message: fmt.Sprintf(format, a...)}
-}
-
-func unprocessable(pointer, format string, a ...any) *FieldError {
-	return &FieldError{Pointer: pointer, Message: fmt.Sprintf(format, a...), Unprocessable: true}
-}
-
-// validator collects FieldErrors.
+// validator collects field errors.
 type validator struct{ errs []error }
 
-func (v *validator) add(e *FieldError) { v.errs = append(v.errs, e) }
+func (v *validator) add(e *field.Error) { v.errs = append(v.errs, e) }
 
 func (v *validator) err() error {
 	switch len(v.errs) {
@@ -58,11 +35,11 @@ func (v *validator) err() error {
 // currency checks an ISO 4217 code: shape (400), then known (422).
 func (v *validator) currency(pointer, c string) bool {
 	if !wellFormedCode(c) {
-		v.add(invalid(pointer, "%q is not an ISO 4217 code (three upper-case letters)", c))
+		v.add(field.Invalid(pointer, "%q is not an ISO 4217 code (three upper-case letters)", c))
 		return false
 	}
 	if _, ok := MinorUnits(c); !ok {
-		v.add(unprocessable(pointer, "currency %s is not one this service quotes in (one of %v)", c, Currencies()))
+		v.add(field.Unprocessable(pointer, "currency %s is not one this service quotes in (one of %v)", c, Currencies()))
 		return false
 	}
 	return true
@@ -71,18 +48,18 @@ func (v *validator) currency(pointer, c string) bool {
 func (v *validator) price(pointer string, p int64) {
 	switch {
 	case p < 0:
-		v.add(invalid(pointer, "must not be negative (got %d)", p))
+		v.add(field.Invalid(pointer, "must not be negative (got %d)", p))
 	case p > MaxAmountMinor:
-		v.add(invalid(pointer, "%d is past the largest amount, %d minor units", p, MaxAmountMinor))
+		v.add(field.Invalid(pointer, "%d is past the largest amount, %d minor units", p, MaxAmountMinor))
 	}
 }
 
 func (v *validator) quantity(pointer string, q int64) {
 	switch {
 	case q < 0:
-		v.add(invalid(pointer, "must not be negative (got %d)", q))
+		v.add(field.Invalid(pointer, "must not be negative (got %d)", q))
 	case q > MaxQuantity:
-		v.add(invalid(pointer, "%d is not a plausible quantity (at most %d)", q, MaxQuantity))
+		v.add(field.Invalid(pointer, "%d is not a plausible quantity (at most %d)", q, MaxQuantity))
 	}
 }
 
@@ -90,15 +67,15 @@ func (v *validator) quantity(pointer string, q int64) {
 func (v *validator) text(pointer, s string, maxRunes, maxBytes int) {
 	switch {
 	case !utf8.ValidString(s):
-		v.add(invalid(pointer, "is not valid UTF-8"))
+		v.add(field.Invalid(pointer, "is not valid UTF-8"))
 	case maxRunes > 0 && utf8.RuneCountInString(s) > maxRunes:
-		v.add(invalid(pointer, "is longer than %d characters", maxRunes))
+		v.add(field.Invalid(pointer, "is longer than %d characters", maxRunes))
 	case maxBytes > 0 && len(s) > maxBytes:
-		v.add(invalid(pointer, "is longer than %d bytes", maxBytes))
+		v.add(field.Invalid(pointer, "is longer than %d bytes", maxBytes))
 	default:
 		for _, r := range s {
 			if unicode.IsControl(r) {
-				v.add(invalid(pointer, "must not contain control characters"))
+				v.add(field.Invalid(pointer, "must not contain control characters"))
 				return
 			}
 		}
@@ -108,7 +85,7 @@ func (v *validator) text(pointer, s string, maxRunes, maxBytes int) {
 func (v *validator) part(pointer string, p PartLine, needDescription bool) {
 	v.text(pointer+"/sku", p.SKU, 0, MaxSKUBytes)
 	if needDescription && p.Description == "" {
-		v.add(invalid(pointer+"/description", "is required"))
+		v.add(field.Invalid(pointer+"/description", "is required"))
 	}
 	v.text(pointer+"/description", p.Description, MaxDescriptionRunes, 0)
 	v.quantity(pointer+"/quantity", p.Quantity)
@@ -116,7 +93,7 @@ func (v *validator) part(pointer string, p PartLine, needDescription bool) {
 }
 
 // Validate checks every field of a price list and returns nil or its
-// FieldErrors (joined), with pointers relative to the PriceList
+// field errors (joined), with pointers relative to the PriceList
 // ("/per_spoke_minor").
 func (pl PriceList) Validate() error {
 	var v validator
@@ -133,13 +110,13 @@ func (pl PriceList) validate(v *validator, prefix string) bool {
 	v.price(prefix+"/per_washer_minor", pl.PerWasherMinor)
 	v.price(prefix+"/per_cut_spoke_minor", pl.PerCutSpokeMinor)
 	if pl.ValidityDays < 0 || pl.ValidityDays > MaxValidityDays {
-		v.add(invalid(prefix+"/validity_days", "must be 0 (the default, %d) or 1 to %d (got %d)", DefaultValidityDays, MaxValidityDays, pl.ValidityDays))
+		v.add(field.Invalid(prefix+"/validity_days", "must be 0 (the default, %d) or 1 to %d (got %d)", DefaultValidityDays, MaxValidityDays, pl.ValidityDays))
 	}
 	return len(v.errs) == n
 }
 
 // Validate checks every field of the input and returns nil or its
-// FieldErrors (joined). Compute calls it; it does not see the price list, so
+// field errors (joined). Compute calls it; it does not see the price list, so
 // the currency match and the amounts are checked by Compute alone.
 func (in Input) Validate() error {
 	var v validator
@@ -151,7 +128,7 @@ func (in Input) validate(v *validator) bool {
 	n := len(v.errs)
 	v.currency("/currency", in.Currency)
 	if in.TaxRatePPM < 0 || in.TaxRatePPM > PPM {
-		v.add(invalid("/tax_rate_ppm", "must be 0 to %d parts per million (got %d)", PPM, in.TaxRatePPM))
+		v.add(field.Invalid("/tax_rate_ppm", "must be 0 to %d parts per million (got %d)", PPM, in.TaxRatePPM))
 	}
 	for _, p := range []struct {
 		ptr  string
@@ -162,7 +139,7 @@ func (in Input) validate(v *validator) bool {
 		}
 	}
 	if len(in.Spokes) > MaxGroups {
-		v.add(invalid("/spokes", "%d spoke groups is not plausible (at most %d)", len(in.Spokes), MaxGroups))
+		v.add(field.Invalid("/spokes", "%d spoke groups is not plausible (at most %d)", len(in.Spokes), MaxGroups))
 	} else {
 		type key struct {
 			side   string
@@ -173,16 +150,16 @@ func (in Input) validate(v *validator) bool {
 			ptr := "/spokes/" + strconv.Itoa(i)
 			okSide := g.Side == SideLeft || g.Side == SideRight
 			if !okSide {
-				v.add(invalid(ptr+"/side", "must be %q or %q (got %q)", SideLeft, SideRight, g.Side))
+				v.add(field.Invalid(ptr+"/side", "must be %q or %q (got %q)", SideLeft, SideRight, g.Side))
 			}
 			okLen := g.LengthMM >= 1 && g.LengthMM <= MaxSpokeLengthMM
 			if !okLen {
-				v.add(invalid(ptr+"/length_mm", "must be 1 to %d mm (got %d)", MaxSpokeLengthMM, g.LengthMM))
+				v.add(field.Invalid(ptr+"/length_mm", "must be 1 to %d mm (got %d)", MaxSpokeLengthMM, g.LengthMM))
 			}
 			if okSide && okLen {
 				k := key{g.Side, g.LengthMM}
 				if j, dup := seen[k]; dup {
-					v.add(invalid(ptr, "a second group of %s %d mm spokes (the first is /spokes/%d): put them in one group", g.Side, g.LengthMM, j))
+					v.add(field.Invalid(ptr, "a second group of %s %d mm spokes (the first is /spokes/%d): put them in one group", g.Side, g.LengthMM, j))
 				} else {
 					seen[k] = i
 				}
@@ -191,7 +168,7 @@ func (in Input) validate(v *validator) bool {
 		}
 	}
 	if len(in.Other) > MaxGroups {
-		v.add(invalid("/other", "%d other lines is not plausible (at most %d)", len(in.Other), MaxGroups))
+		v.add(field.Invalid("/other", "%d other lines is not plausible (at most %d)", len(in.Other), MaxGroups))
 	} else {
 		for i, p := range in.Other {
 			v.part("/other/"+strconv.Itoa(i), p, true)
@@ -203,7 +180,7 @@ func (in Input) validate(v *validator) bool {
 	v.quantity("/labour/washers_fitted", l.WashersFitted)
 	v.quantity("/labour/spokes_cut", l.SpokesCut)
 	if l.SpokesCut > l.Spokes && l.Spokes >= 0 && l.SpokesCut <= MaxQuantity {
-		v.add(unprocessable("/labour/spokes_cut", "%d spokes cut but only %d laced", l.SpokesCut, l.Spokes))
+		v.add(field.Unprocessable("/labour/spokes_cut", "%d spokes cut but only %d laced", l.SpokesCut, l.Spokes))
 	}
 	return len(v.errs) == n
 }

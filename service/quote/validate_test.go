@@ -7,16 +7,18 @@ import (
 	"testing"
 
 	"github.com/google/go-cmp/cmp"
+
+	"wheelbench/service/field"
 )
 
 // fieldErrors walks an errors.Join tree as the HTTP layer does. It fails the
-// test on any error that is not a *FieldError.
-func fieldErrors(t testing.TB, err error) []*FieldError {
+// test on any error that is not a *field.Error.
+func fieldErrors(t testing.TB, err error) []*field.Error {
 	t.Helper()
-	var out []*FieldError
+	var out []*field.Error
 	var walk func(error)
 	walk = func(e error) {
-		if fe, ok := e.(*FieldError); ok {
+		if fe, ok := e.(*field.Error); ok {
 			out = append(out, fe)
 			return
 		}
@@ -141,9 +143,9 @@ func TestComputeNamesTheField(t *testing.T) {
 			}
 			var got []wantField
 			for _, fe := range fieldErrors(t, err) {
-				got = append(got, wantField{fe.FieldPointer(), fe.IsUnprocessable()})
+				got = append(got, wantField{fe.Pointer, fe.Unprocessable})
 				if fe.Message == "" || fe.Error() != fe.Pointer+": "+fe.Message {
-					t.Errorf("FieldError %#v reads %q", fe, fe.Error())
+					t.Errorf("field error %#v reads %q", fe, fe.Error())
 				}
 			}
 			if d := cmp.Diff(c.want, got); d != "" {
@@ -195,12 +197,9 @@ func TestComputeJoinsErrors(t *testing.T) {
 	if d := cmp.Diff(want, ptrs); d != "" {
 		t.Errorf("pointers (-want +got):\n%s", d)
 	}
-	// The HTTP layer finds them through the interface, not the type.
-	var fp interface {
-		FieldPointer() string
-		IsUnprocessable() bool
-	}
-	if !errors.As(err, &fp) || fp.FieldPointer() != "/tax_rate_ppm" {
+	// The HTTP layer finds them as the one field-error type.
+	var fp *field.Error
+	if !errors.As(err, &fp) || fp.Pointer != "/tax_rate_ppm" {
 		t.Errorf("errors.As to the interface failed on %v", err)
 	}
 }

@@ -4,6 +4,8 @@ import (
 	"fmt"
 	"math"
 	"strconv"
+
+	"wheelbench/service/field"
 )
 
 // Spec is one spoke, described the same way for every calculation: spoke
@@ -67,15 +69,6 @@ type Thread struct {
 	DiameterMM *float64 `json:"diameter_mm,omitempty"`
 }
 
-// Problem is one bad member of a Spec. Pointer is relative to the spoke
-// ("/sections/0/length_mm"); Unprocessable marks well-formed values that
-// describe no spoke (HTTP 422) rather than malformed ones (400).
-type Problem struct {
-	Pointer       string
-	Message       string
-	Unprocessable bool
-}
-
 // Limits that separate absurd input from real spokes.
 const (
 	maxSpokeMM   = 20    // a cross-section dimension
@@ -112,15 +105,11 @@ type Resolved struct {
 // Resolve validates s and works out its sizes. requireEnd says whether
 // the end diameter is needed (it is for lengths, stretch and the fit
 // rules; a conversion needs only the measured section).
-func (s Spec) Resolve(requireEnd bool) (Resolved, []Problem) {
+func (s Spec) Resolve(requireEnd bool) (Resolved, []*field.Error) {
 	var r Resolved
-	var ps []Problem
-	bad := func(p, format string, a ...any) {
-		ps = append(ps, Problem{Pointer: p, Message: fmt.Sprintf(format, a...)})
-	}
-	impossible := func(p, format string, a ...any) {
-		ps = append(ps, Problem{Pointer: p, Message: fmt.Sprintf(format, a...), Unprocessable: true})
-	}
+	var ps []*field.Error
+	bad := func(p, format string, a ...any) { ps = append(ps, field.Invalid(p, format, a...)) }
+	impossible := func(p, format string, a ...any) { ps = append(ps, field.Unprocessable(p, format, a...)) }
 	size := func(p string, v *float64) float64 {
 		if v == nil {
 			return 0
@@ -316,11 +305,9 @@ func (r Resolved) MinArea() (float64, string) {
 }
 
 // check validates a thread. nipple says whether the pitch is required.
-func (t Thread) check(at string, nipple bool) []Problem {
-	var ps []Problem
-	bad := func(p, format string, a ...any) {
-		ps = append(ps, Problem{Pointer: at + p, Message: fmt.Sprintf(format, a...)})
-	}
+func (t Thread) check(at string, nipple bool) []*field.Error {
+	var ps []*field.Error
+	bad := func(p, format string, a ...any) { ps = append(ps, field.Invalid(at+p, format, a...)) }
 	if t.SizeMM != nil && (!finite(*t.SizeMM) || *t.SizeMM <= 0 || *t.SizeMM > maxSpokeMM) {
 		bad("/size_mm", "must be a positive, finite size of at most %d mm", maxSpokeMM)
 	}
@@ -348,7 +335,7 @@ func (t Thread) check(at string, nipple bool) []Problem {
 }
 
 // CheckNippleThread validates a nipple's thread; pointers start with at.
-func (t Thread) CheckNippleThread(at string) []Problem { return t.check(at, true) }
+func (t Thread) CheckNippleThread(at string) []*field.Error { return t.check(at, true) }
 
 // Size is the spoke size a thread is cut for, from SizeMM or Gauge (0 when
 // neither is given).

@@ -6,6 +6,7 @@ import (
 	"math"
 	"sort"
 
+	"wheelbench/service/field"
 	"wheelbench/service/spoke"
 )
 
@@ -28,21 +29,18 @@ const defaultTolerancePct = 10
 // sides and a warning says that a dished wheel needs the ratio. Without a
 // target each side is judged against its own mean.
 type AuditRequest struct {
-	// CalibrationID is resolved by the caller; this package ignores it.
-	CalibrationID    string         `json:"calibration_id,omitempty"`
-	Calibration      *Calibration   `json:"calibration,omitempty"`
 	Spoke            spoke.Spec     `json:"spoke"`
-	SpokeLeft        *spoke.Spec    `json:"spoke_left,omitempty"`
-	SpokeRight       *spoke.Spec    `json:"spoke_right,omitempty"`
+	SpokeLeft        *spoke.Spec    `json:"spoke_left"`
+	SpokeRight       *spoke.Spec    `json:"spoke_right"`
 	Readings         []AuditReading `json:"readings"`
-	TargetTensionN   *float64       `json:"target_tension_n,omitempty"`
-	TargetTensionKgf *float64       `json:"target_tension_kgf,omitempty"`
-	TargetTensionLbf *float64       `json:"target_tension_lbf,omitempty"`
-	TargetSide       string         `json:"target_side,omitempty"`
+	TargetTensionN   *float64       `json:"target_tension_n"`
+	TargetTensionKgf *float64       `json:"target_tension_kgf"`
+	TargetTensionLbf *float64       `json:"target_tension_lbf"`
+	TargetSide       string         `json:"target_side"`
 	// TolerancePct is the allowed deviation in percent (default 10).
-	TolerancePct *float64 `json:"tolerance_pct,omitempty"`
+	TolerancePct *float64 `json:"tolerance_pct"`
 	// GeometricLeftRightRatio is T_left/T_right from the wheel's geometry.
-	GeometricLeftRightRatio *float64 `json:"geometric_left_right_ratio,omitempty"`
+	GeometricLeftRightRatio *float64 `json:"geometric_left_right_ratio"`
 }
 
 // AuditReading is one spoke's dial reading.
@@ -137,7 +135,7 @@ func targetAims(target float64, ratio *float64, targetSide string) (aims map[str
 		tighter = "right"
 	}
 	if targetSide != "" && tighter != "both" && targetSide != tighter {
-		return nil, "", nil, impossible("/target_side", "target_side %s names the slacker side: the target tension is always the tighter side's, and with geometric_left_right_ratio %g (T_left/T_right) the tighter side is the %s; omit target_side or send %s, with the %s side's tension as the target",
+		return nil, "", nil, field.Unprocessable("/target_side", "target_side %s names the slacker side: the target tension is always the tighter side's, and with geometric_left_right_ratio %g (T_left/T_right) the tighter side is the %s; omit target_side or send %s, with the %s side's tension as the target",
 			targetSide, r, tighter, tighter, tighter)
 	}
 	switch tighter {
@@ -152,23 +150,23 @@ func targetAims(target float64, ratio *float64, targetSide string) (aims map[str
 }
 
 // Audit converts every reading with the model and judges the wheel.
-// Errors are *FieldError with pointers into the audit body.
+// Errors are *field.Error with pointers into the audit body.
 func (m *Model) Audit(req AuditRequest) (AuditResult, error) {
 	var errs []error
 	tol := float64(defaultTolerancePct)
 	if req.TolerancePct != nil {
 		tol = *req.TolerancePct
 		if !finite(tol) || tol <= 0 || tol > 50 {
-			errs = append(errs, badField("/tolerance_pct", "tolerance_pct must be above 0 and at most 50"))
+			errs = append(errs, field.Invalid("/tolerance_pct", "tolerance_pct must be above 0 and at most 50"))
 		}
 	}
 	ratio := req.GeometricLeftRightRatio
 	if ratio != nil && (!finite(*ratio) || *ratio <= 0 || *ratio > 10) {
-		errs = append(errs, badField("/geometric_left_right_ratio", "geometric_left_right_ratio must be positive and at most 10"))
+		errs = append(errs, field.Invalid("/geometric_left_right_ratio", "geometric_left_right_ratio must be positive and at most 10"))
 	}
 	targetSide := req.TargetSide
 	if targetSide != "" && targetSide != "left" && targetSide != "right" {
-		errs = append(errs, badField("/target_side", "target_side must be left or right"))
+		errs = append(errs, field.Invalid("/target_side", "target_side must be left or right"))
 	}
 	var target *float64
 	set := 0
@@ -184,15 +182,15 @@ func (m *Model) Audit(req AuditRequest) (AuditResult, error) {
 		set++
 		v := c.f(*c.v)
 		if set > 1 {
-			errs = append(errs, badField(c.at, "give one target tension only"))
+			errs = append(errs, field.Invalid(c.at, "give one target tension only"))
 		} else if !finite(v) || v <= 0 || v > maxTensionN {
-			errs = append(errs, badField(c.at, "the target tension must be positive and at most %d N", maxTensionN))
+			errs = append(errs, field.Invalid(c.at, "the target tension must be positive and at most %d N", maxTensionN))
 		} else {
 			target = &v
 		}
 	}
 	if len(req.Readings) == 0 || len(req.Readings) > maxReadings {
-		errs = append(errs, badField("/readings", "give between 1 and %d readings", maxReadings))
+		errs = append(errs, field.Invalid("/readings", "give between 1 and %d readings", maxReadings))
 	}
 	if err := errors.Join(errs...); err != nil {
 		return AuditResult{}, err
@@ -231,16 +229,16 @@ func (m *Model) Audit(req AuditRequest) (AuditResult, error) {
 	bySide := map[string][]int{}
 	for i, rd := range req.Readings {
 		if rd.Side != "left" && rd.Side != "right" {
-			errs = append(errs, badField(ptr("readings", i, "side"), "side must be left or right"))
+			errs = append(errs, field.Invalid(ptr("readings", i, "side"), "side must be left or right"))
 			continue
 		}
 		if rd.Spoke < 0 {
-			errs = append(errs, badField(ptr("readings", i, "spoke"), "spoke must be a non-negative index"))
+			errs = append(errs, field.Invalid(ptr("readings", i, "spoke"), "spoke must be a non-negative index"))
 			continue
 		}
 		key := [2]any{rd.Side, rd.Spoke}
 		if seen[key] {
-			errs = append(errs, badField(ptr("readings", i, "spoke"), "spoke %d on the %s side is listed twice", rd.Spoke, rd.Side))
+			errs = append(errs, field.Invalid(ptr("readings", i, "spoke"), "spoke %d on the %s side is listed twice", rd.Spoke, rd.Side))
 			continue
 		}
 		seen[key] = true

@@ -5,6 +5,7 @@ import (
 	"math"
 	"sort"
 
+	"wheelbench/service/field"
 	"wheelbench/service/spoke"
 )
 
@@ -87,15 +88,15 @@ type section struct {
 // pointer of the spec itself.
 func (s SpokeSpec) resolve(at string) (section, error) {
 	sec := spoke.Section{Profile: spoke.Profile(s.Profile), DiameterMM: s.DiameterMM, WidthMM: s.WidthMM, ThicknessMM: s.ThicknessMM}
-	if field, err := sec.Validate(); err != nil {
-		return section{}, badField(at+"/"+field, "%v", err)
+	if member, err := sec.Validate(); err != nil {
+		return section{}, field.Invalid(at+"/"+member, "%v", err)
 	}
 	for _, f := range []struct {
 		name string
 		v    float64
 	}{{"diameter_mm", s.DiameterMM}, {"width_mm", s.WidthMM}, {"thickness_mm", s.ThicknessMM}} {
 		if f.v > maxSectionMM {
-			return section{}, badField(at+"/"+f.name, "%s %g is not a spoke dimension (at most %d mm)", f.name, f.v, maxSectionMM)
+			return section{}, field.Invalid(at+"/"+f.name, "%s %g is not a spoke dimension (at most %d mm)", f.name, f.v, maxSectionMM)
 		}
 	}
 	var e float64
@@ -103,16 +104,16 @@ func (s SpokeSpec) resolve(at string) (section, error) {
 	case s.EGPa != nil:
 		e = *s.EGPa
 		if !finite(e) || e < 1 || e > 1000 {
-			return section{}, badField(at+"/e_gpa", "e_gpa must be a Young's modulus between 1 and 1000 GPa")
+			return section{}, field.Invalid(at+"/e_gpa", "e_gpa must be a Young's modulus between 1 and 1000 GPa")
 		}
 	case s.Material != "":
 		m, ok := spoke.LookupMaterial(s.Material)
 		if !ok {
-			return section{}, badField(at+"/material", "unknown material %q; known: %v, or give e_gpa", s.Material, spoke.MaterialNames())
+			return section{}, field.Invalid(at+"/material", "unknown material %q; known: %v, or give e_gpa", s.Material, spoke.MaterialNames())
 		}
 		e = m.EGPa
 	default:
-		return section{}, badField(at+"/material", "give the spoke's material or its e_gpa: steel and titanium read very differently")
+		return section{}, field.Invalid(at+"/material", "give the spoke's material or its e_gpa: steel and titanium read very differently")
 	}
 	norm := s
 	if norm.Profile == "" {
@@ -180,10 +181,10 @@ func validateTool(tool Tool) (unit float64, err error) {
 	}
 	var errs []error
 	if !finite(unit) || unit <= 0 || unit > 1 {
-		errs = append(errs, badField("/unit_mm", "unit_mm must be the dial's millimetres per unit, above 0 and at most 1"))
+		errs = append(errs, field.Invalid("/unit_mm", "unit_mm must be the dial's millimetres per unit, above 0 and at most 1"))
 	}
 	if s := tool.MeasuredSpanMM; s != nil && (!finite(*s) || *s <= 0 || *s > 500) {
-		errs = append(errs, badField("/measured_span_mm", "measured_span_mm must be a positive span in mm (at most 500)"))
+		errs = append(errs, field.Invalid("/measured_span_mm", "measured_span_mm must be a positive span in mm (at most 500)"))
 	}
 	return unit, errors.Join(errs...)
 }
@@ -198,10 +199,10 @@ func validateCalibration(cal Calibration) ([]checkedColumn, error) {
 		calSource = SourceMakerTable
 	case SourceMakerTable, SourceKnownTension:
 	default:
-		errs = append(errs, badField("/source", "source must be maker_table or known_tension"))
+		errs = append(errs, field.Invalid("/source", "source must be maker_table or known_tension"))
 	}
 	if len(cal.Columns) == 0 {
-		return nil, errors.Join(append(errs, badField("/columns", "a calibration needs at least one column"))...)
+		return nil, errors.Join(append(errs, field.Invalid("/columns", "a calibration needs at least one column"))...)
 	}
 	var cols []checkedColumn
 	for i, c := range cal.Columns {
@@ -217,7 +218,7 @@ func validateCalibration(cal Calibration) ([]checkedColumn, error) {
 			src = calSource
 		case SourceMakerTable, SourceKnownTension:
 		default:
-			errs = append(errs, badField(at+"/source", "source must be maker_table or known_tension"))
+			errs = append(errs, field.Invalid(at+"/source", "source must be maker_table or known_tension"))
 			continue
 		}
 		minPoints := 2
@@ -225,17 +226,17 @@ func validateCalibration(cal Calibration) ([]checkedColumn, error) {
 			minPoints = 1
 		}
 		if len(c.Points) < minPoints {
-			errs = append(errs, impossible(at+"/points", "column %d (%s) has %d point(s); a %s column needs at least %d", i, sec.describe(), len(c.Points), src, minPoints))
+			errs = append(errs, field.Unprocessable(at+"/points", "column %d (%s) has %d point(s); a %s column needs at least %d", i, sec.describe(), len(c.Points), src, minPoints))
 			continue
 		}
 		bad := false
 		for j, p := range c.Points {
 			if !finite(p.TensionN) || p.TensionN <= 0 || p.TensionN > maxTensionN {
-				errs = append(errs, badField(ptr("columns", i, "points", j, "tension_n"), "tension_n must be positive and at most %d N", maxTensionN))
+				errs = append(errs, field.Invalid(ptr("columns", i, "points", j, "tension_n"), "tension_n must be positive and at most %d N", maxTensionN))
 				bad = true
 			}
 			if !finite(p.Reading) || math.Abs(p.Reading) > maxReading {
-				errs = append(errs, badField(ptr("columns", i, "points", j, "reading"), "reading must be a finite dial reading"))
+				errs = append(errs, field.Invalid(ptr("columns", i, "points", j, "reading"), "reading must be a finite dial reading"))
 				bad = true
 			}
 		}
@@ -249,7 +250,7 @@ func validateCalibration(cal Calibration) ([]checkedColumn, error) {
 		}
 		for k, prev := range cols {
 			if sameSection(prev.sec, sec) {
-				errs = append(errs, impossible(at+"/spoke", "column %d repeats the section of column %d (%s); put all points of one section in one column", i, k, sec.describe()))
+				errs = append(errs, field.Unprocessable(at+"/spoke", "column %d repeats the section of column %d (%s); put all points of one section in one column", i, k, sec.describe()))
 			}
 		}
 		cols = append(cols, cc)
@@ -291,7 +292,7 @@ func buildColumn(i int, sec section, src string, pts []Point) (checkedColumn, er
 	cc := checkedColumn{sec: sec, source: src, points: pts, distinct: len(levels)}
 	for k := 1; k < len(levels); k++ {
 		if levels[k].r < levels[k-1].r {
-			return cc, impossible(ptr("columns", i, "points", levelPoint[k], "reading"),
+			return cc, field.Unprocessable(ptr("columns", i, "points", levelPoint[k], "reading"),
 				"column %d (%s) is not monotone: reading %g at %g N is below %g at %g N; readings must rise with tension",
 				i, sec.describe(), levels[k].r, levels[k].t, levels[k-1].r, levels[k-1].t)
 		}

@@ -1,504 +1,119 @@
 package tension
 
 import (
-	"bytes"
-	"encoding/xml"
 	"fmt"
 	"math"
-	"slices"
 	"sort"
 	"strconv"
 	"strings"
-	"time"
+
+	"wheelbench/service/field"
 )
 
-// ChartHeading is what a chart's title names: the tool and the calibration
-// version drawn.
-type ChartHeading struct {
-	ToolLabel          string
-	ToolSerial         string
-	CalibrationVersion int
-	Source             string    // the calibration's source: maker_table or known_tension
-	Published          time.Time // when the version was published; zero leaves it out
+// Chart is a calibration as a drawing shows it: for each column, and for a
+// requested section when one is asked for, the reading to aim for at a run
+// of tensions with its 95 % interval, computed exactly as Target computes
+// it, and the cautions a reader of the drawing needs. Drawing it is a
+// view's business (api/chart); nothing here knows about pixels.
+type Chart struct {
+	// UnitMM is the dial's millimetres per unit.
+	UnitMM float64
+	// CalibratedN is the calibration's tension range; FromN to ToN are the
+	// tensions sampled: that range and 15 % of it beyond each end.
+	CalibratedN [2]float64
+	FromN, ToN  float64
+	// ToolModel says whether a tool model was identified; without one only
+	// the columns' own tables have curves.
+	ToolModel bool
+	Columns   []ChartCurve
+	// Requested is the requested section's curve, nil when none was asked.
+	Requested *ChartCurve
+	Cautions  []string
+	req       *prepared
 }
 
-// Chart geometry, in SVG user units (CSS pixels: 1000 wide is 265 mm
-// printed at 96 per inch, inside an A4 or Letter landscape sheet).
-const (
-	chartW             = 1000.0
-	plotL, plotR       = 84.0, 640.0 // plot area, left and right
-	plotT, plotB       = 100.0, 392.0
-	panelT, panelB     = 408.0, 500.0 // the band panel, under the plot
-	legendX            = 728.0
-	legendWrap         = 38  // characters per legend line
-	cautionWrap        = 160 // characters per caution line
-	chartSamples       = 120
-	lineGap            = 13.0
-	directLabelMinGapY = 12.0
-	// panelSpan is the band panel's half-height as a multiple of the
-	// widest half-band drawn, so the band fills most of it.
-	panelSpan = 1.6
-)
-
-// Series styles: colour (a palette that stays apart for colour-blind
-// readers), dash pattern and marker, so that a black-and-white print tells
-// the series apart too. Dotted is kept for extrapolated parts.
-var (
-	seriesColours = []string{"#0072b2", "#d55e00", "#009e73", "#aa4499", "#a06f00", "#4d4d4d", "#3a9fd8"}
-	seriesDashes  = []string{"", "10 3", "10 3 2 3", "5 2.5", "14 3 2 3 2 3", "16 4", "7 2 2 2 2 2"}
-	seriesMarkers = []string{"circle", "square", "triangle", "diamond", "triangle-down", "cross", "plus"}
-)
-
-// dotted is the dash pattern of every extrapolated part of a curve.
-const dotted = "0.1 4"
-
-// halo keeps a label legible over lines and hatching: a white outline
-// painted under the glyphs.
-const halo = ` stroke="#ffffff" stroke-width="3" stroke-linejoin="round" paint-order="stroke"`
-
-// chartSample is one point of a drawn curve: the reading to aim for at a
-// tension, its 95 % reading interval and how it was obtained.
-type chartSample struct {
-	t, r, lo, hi float64
-	extrapolated bool
-	unreliable   bool
+// ChartCurve is one section's curve.
+type ChartCurve struct {
+	// Section describes the section ("round 1.8 mm"), Short labels its
+	// curve ("1.8 mm").
+	Section, Short string
+	// Source is a column's source (maker_table, known_tension); empty for
+	// the requested section.
+	Source string
+	// Pieces are the curve's contiguous runs of samples, in tension order;
+	// a tension with no answer splits the curve.
+	Pieces [][]ChartSample
+	// Points are a column's calibration points.
+	Points []Point
 }
 
-type chartSeries struct {
-	label     string // legend text
-	short     string // label beside the curve's end
-	colour    string
-	dash      string
-	marker    string
-	pieces    [][]chartSample // contiguous runs; gaps where no value exists
-	dots      []Point
-	requested bool
+// ChartSample is one point of a curve: the reading to aim for at TensionN,
+// its 95 % reading interval, and how a conversion there would be marked.
+type ChartSample struct {
+	TensionN, Reading        float64
+	Low, High                float64
+	Extrapolated, Unreliable bool
 }
 
-// Chart draws the calibration as an SVG for screen and print: each
-// column's points and curve and — when spec is not nil — that section's
-// curve with its 95 % band, reading against tension (N, with a kgf scale).
-// Every curve is what a conversion gives (Model.Target at each tension):
-// the column's own curve inside its table, the tool model elsewhere. Parts
-// that a conversion would call extrapolated are dotted, the band is
-// hatched there and labelled, and tensions outside the calibrated range
-// are hatched. On the plot's reading scale the band is only a few pixels
-// high, so a panel under it draws the band again, magnified, about the aim
-// reading, with the tension interval printed under each tension tick; the
-// requested section's cautions are printed under everything. Without a
-// tool model only the columns' own tables are drawn and a spec that is not
-// a column is refused like a conversion would be.
-func (m *Model) Chart(spec *SpokeSpec, h ChartHeading) ([]byte, error) {
-	var req *prepared
+// chartSamples is how many even steps the sampled tensions take.
+const chartSamples = 120
+
+// Chart samples every column's curve and, when spec is not nil, that
+// section's, over the calibrated tensions and 15 % beyond them. Parts a
+// conversion would call extrapolated are marked so. Without a tool model a
+// spec that is not a column is refused as a conversion would refuse it
+// (pointers under "/spoke").
+func (m *Model) Chart(spec *SpokeSpec) (Chart, error) {
+	c := Chart{UnitMM: m.UnitMM, CalibratedN: m.TensionRangeN, ToolModel: m.Physical != nil}
 	if spec != nil {
 		p, err := m.prepare(*spec, "/spoke")
 		if err != nil {
-			return nil, err
+			return Chart{}, err
 		}
 		if m.Physical == nil && p.col < 0 {
-			return nil, impossible("/spoke", "%s", m.Unidentified)
+			return Chart{}, field.Unprocessable("/spoke", "%s", m.Unidentified)
 		}
-		req = &p
+		c.req = &p
 	}
 	lo, hi := m.TensionRangeN[0], m.TensionRangeN[1]
-	tMin, tMax := math.Max(0, lo-0.15*(hi-lo)), hi+0.15*(hi-lo)
-	if !(tMax > tMin) {
-		tMin, tMax = 0, math.Max(1, 2*hi)
+	c.FromN, c.ToN = math.Max(0, lo-0.15*(hi-lo)), hi+0.15*(hi-lo)
+	if !(c.ToN > c.FromN) {
+		c.FromN, c.ToN = 0, math.Max(1, 2*hi)
 	}
-	ts := chartTensions(m, tMin, tMax)
-
-	var all []chartSeries
-	for i, c := range m.Columns {
-		p, err := m.prepare(c.Spoke, "")
+	ts := chartTensions(m, c.FromN, c.ToN)
+	for _, col := range m.Columns {
+		p, err := m.prepare(col.Spoke, "")
 		if err != nil {
-			return nil, err
+			return Chart{}, err
 		}
-		k := i % len(seriesColours)
-		all = append(all, chartSeries{
-			label:  fmt.Sprintf("%s; %s", c.section().describe(), sourceWords(c.Source)),
-			short:  shortSection(c.section()),
-			colour: seriesColours[k], dash: seriesDashes[k], marker: seriesMarkers[k],
-			pieces: p.sampleTargets(ts), dots: c.Points,
-		})
+		c.Columns = append(c.Columns, ChartCurve{Section: col.section().describe(), Short: shortSection(col.section()),
+			Source: col.Source, Pieces: p.sampleTargets(ts), Points: col.Points})
 	}
-	var reqSeries *chartSeries
-	halfMax, halfMin := 0.0, math.Inf(1) // the requested band's half-widths, dial units
-	var halves []float64
-	if req != nil {
-		s := chartSeries{short: shortSection(req.sec), colour: "#000000", pieces: req.sampleTargets(ts), requested: true}
-		for _, pc := range s.pieces {
-			for _, q := range pc {
-				halfMax = math.Max(halfMax, math.Max(q.hi-q.r, q.r-q.lo))
-				halfMin = math.Min(halfMin, math.Min(q.hi-q.r, q.r-q.lo))
-				halves = append(halves, math.Max(q.hi-q.r, q.r-q.lo))
-			}
-		}
-		slices.Sort(halves)
-		s.label = "requested: " + req.sec.describe() + ", with its 95 % band"
-		if a, z := fmtNum(halfMin, 1), fmtNum(halfMax, 1); a == z {
-			s.label += fmt.Sprintf(" (±%s dial units; magnified below)", z)
-		} else if halfMax > 0 {
-			s.label += fmt.Sprintf(" (±%s to ±%s dial units; magnified below)", a, z)
-		}
-		all = append(all, s)
-		reqSeries = &all[len(all)-1]
+	if c.req != nil {
+		c.Requested = &ChartCurve{Section: c.req.sec.describe(), Short: shortSection(c.req.sec), Pieces: c.req.sampleTargets(ts)}
 	}
-
-	// Reading range over every curve and point, and each band where it is
-	// no wider than three typical bands: an extrapolated end's very wide
-	// band is clipped by the plot rather than squeezing every curve (its
-	// figures are in the label and the band panel).
-	rMin, rMax := math.Inf(1), math.Inf(-1)
-	capHalf := math.Inf(1)
-	if len(halves) > 0 {
-		capHalf = 3 * halves[len(halves)/2]
-	}
-	for _, s := range all {
-		for _, pc := range s.pieces {
-			for _, q := range pc {
-				lo, hi := q.lo, q.hi
-				if q.hi-q.lo > 2*capHalf {
-					lo, hi = q.r, q.r
-				}
-				rMin, rMax = math.Min(rMin, lo), math.Max(rMax, hi)
-			}
-		}
-		for _, d := range s.dots {
-			rMin, rMax = math.Min(rMin, d.Reading), math.Max(rMax, d.Reading)
-		}
-	}
-	if !finite(rMin) || !finite(rMax) {
-		rMin, rMax = 0, 1
-	}
-	if !(rMax > rMin) {
-		rMin, rMax = rMin-1, rMin+1
-	}
-	pad := 0.04 * (rMax - rMin)
-	rMin, rMax = rMin-pad, rMax+pad
-	sx := func(t float64) float64 { return plotL + (t-tMin)/(tMax-tMin)*(plotR-plotL) }
-	sy := func(r float64) float64 { return plotB + (r-rMin)/(rMax-rMin)*(plotT-plotB) }
-	panel := reqSeries != nil && halfMax > 0
-	// The panel's scale: the widest band, unless it is far wider than the
-	// typical one (an extrapolated end can be); then three times the median,
-	// so the typical band stays a readable height and the widest is clipped
-	// (its figures are in the label and the interval row).
-	dMax := panelSpan * halfMax
-	if len(halves) > 0 {
-		dMax = panelSpan * math.Min(halfMax, 3*halves[len(halves)/2])
-	}
-	sd := func(d float64) float64 { return (panelT+panelB)/2 - d/dMax*(panelB-panelT)/2 }
-	axisB := plotB
-	if panel {
-		axisB = panelB
-	}
-
-	type cautionLine struct {
-		text  string
-		first bool
-	}
-	var cautionLines []cautionLine
-	for _, c := range m.chartCautions(req, reqSeries) {
-		for i, l := range wrapWords(c, cautionWrap) {
-			cautionLines = append(cautionLines, cautionLine{l, i == 0})
-		}
-	}
-	cautionsY := axisB + 66
-	if panel {
-		cautionsY += 14
-	}
-
-	// Legend first into its own buffer: its height decides the picture's.
-	var lg bytes.Buffer
-	legendBottom := m.drawLegend(&lg, all, reqSeries, lo, hi)
-	height := axisB + 58
-	if len(cautionLines) > 0 {
-		height = cautionsY + 6 + float64(len(cautionLines))*13.5
-	}
-	height = math.Ceil(math.Max(height, legendBottom) + 12)
-
-	var b bytes.Buffer
-	fmt.Fprintf(&b, `<svg xmlns="http://www.w3.org/2000/svg" width="%.0f" height="%.0f" viewBox="0 0 %.0f %.0f" font-family="DejaVu Sans, Liberation Sans, Arial, sans-serif">`+"\n", chartW, height, chartW, height)
-	b.WriteString(chartDefs)
-	fmt.Fprintf(&b, `<rect x="0" y="0" width="%.0f" height="%.0f" fill="#ffffff"/>`+"\n", chartW, height)
-	text(&b, 24, 26, "start", 17, h.title(), `class="title" font-weight="bold"`)
-	text(&b, 24, 46, "start", 12, m.subtitle(h), `class="subtitle"`)
-
-	xl, xh := sx(lo), sx(hi)
-	// background draws, for a panel from top to bottom, the tensions
-	// outside the calibrated range hatched, the grid at the tension ticks
-	// and the calibrated range's ends.
-	background := func(top, bottom float64) {
-		for _, z := range [][2]float64{{plotL, xl}, {xh, plotR}} {
-			if z[1]-z[0] < 0.5 {
-				continue
-			}
-			fmt.Fprintf(&b, `<rect class="outside-range" x="%.1f" y="%.1f" width="%.1f" height="%.1f" fill="url(#zone-hatch)"/>`+"\n", z[0], top, z[1]-z[0], bottom-top)
-		}
-		for _, v := range ticks(tMin, tMax) {
-			line(&b, sx(v), bottom, sx(v), top, `stroke="#dddddd" stroke-width="0.8"`)
-		}
-		for _, x := range []float64{xl, xh} {
-			line(&b, x, bottom, x, top, `class="calibrated-range" stroke="#333333" stroke-width="1" stroke-dasharray="5 3"`)
-		}
-	}
-	background(plotT, plotB)
-	for _, v := range ticks(rMin, rMax) {
-		line(&b, plotL, sy(v), plotR, sy(v), `stroke="#dddddd" stroke-width="0.8"`)
-	}
-
-	// band draws the requested section's band with its edges; y maps a
-	// sample and one of its values to a y.
-	band := func(class string, edges bool, y func(q chartSample, v float64) float64) {
-		for _, pc := range reqSeries.pieces {
-			for _, seg := range segments(pc) {
-				cls, fill := class, `fill="#bdbdbd" fill-opacity="0.8"`
-				if seg.extrapolated {
-					cls, fill = class+" extrapolated", `fill="url(#band-hatch)"`
-				}
-				fmt.Fprintf(&b, `<polygon class="%s" %s stroke="none" points="`, cls, fill)
-				for _, q := range seg.pts {
-					fmt.Fprintf(&b, "%.1f,%.1f ", sx(q.t), y(q, q.hi))
-				}
-				for k := len(seg.pts) - 1; k >= 0; k-- {
-					fmt.Fprintf(&b, "%.1f,%.1f ", sx(seg.pts[k].t), y(seg.pts[k], seg.pts[k].lo))
-				}
-				b.WriteString("\"/>\n")
-				if !edges {
-					continue
-				}
-				for _, edge := range []func(chartSample) float64{func(q chartSample) float64 { return q.hi }, func(q chartSample) float64 { return q.lo }} {
-					b.WriteString(`<polyline class="band-edge" fill="none" stroke="#000000" stroke-width="0.8" points="`)
-					for _, q := range seg.pts {
-						fmt.Fprintf(&b, "%.1f,%.1f ", sx(q.t), y(q, edge(q)))
-					}
-					b.WriteString("\"/>\n")
-				}
-			}
-		}
-	}
-	// curve draws one series' segments, solid or its own dashes where
-	// calibrated or interpolated, dotted where extrapolated.
-	curve := func(s chartSeries, width float64, y func(q chartSample) float64) {
-		for _, pc := range s.pieces {
-			for _, seg := range segments(pc) {
-				cls, dash, w := "segment", s.dash, width
-				if seg.extrapolated {
-					cls, dash, w = "segment extrapolated", dotted, width+0.8
-				}
-				fmt.Fprintf(&b, `<polyline class="%s" fill="none" stroke="%s" stroke-width="%.1f" stroke-linecap="round" stroke-linejoin="round"`, cls, s.colour, w)
-				if dash != "" {
-					fmt.Fprintf(&b, ` stroke-dasharray="%s"`, dash)
-				}
-				b.WriteString(` points="`)
-				for _, q := range seg.pts {
-					fmt.Fprintf(&b, "%.1f,%.1f ", sx(q.t), y(q))
-				}
-				b.WriteString("\"/>\n")
-			}
-		}
-	}
-	// extrapolatedLabels writes "extrapolated" over the middle of each long
-	// extrapolated part of the requested curve, on a white halo; y gives
-	// the label's position for a sample.
-	extrapolatedLabels := func(y func(q chartSample) float64) {
-		for _, pc := range reqSeries.pieces {
-			for _, seg := range segments(pc) {
-				if !seg.extrapolated || sx(seg.pts[len(seg.pts)-1].t)-sx(seg.pts[0].t) < 70 {
-					continue
-				}
-				q := seg.pts[len(seg.pts)/2]
-				label := "extrapolated"
-				for _, p := range seg.pts {
-					if p.unreliable {
-						label = "extrapolated, unreliable"
-						break
-					}
-				}
-				text(&b, sx(q.t), y(q), "middle", 12, label, `class="series-label extrapolated" font-style="italic" font-weight="bold"`+halo)
-			}
-		}
-	}
-
-	fmt.Fprintf(&b, `<clipPath id="plot"><rect x="%.1f" y="%.1f" width="%.1f" height="%.1f"/></clipPath>`+"\n", plotL, plotT, plotR-plotL, plotB-plotT)
-	b.WriteString(`<g clip-path="url(#plot)">` + "\n")
-	if reqSeries != nil {
-		// No edges here: on the plot's scale the band is a few pixels
-		// high and edges would hide the dotted curve; the panel has them.
-		band("band", false, func(_ chartSample, v float64) float64 { return sy(v) })
-	}
-	for _, s := range all {
-		fmt.Fprintf(&b, `<g class="curve" data-series="%s">`+"\n", map[bool]string{false: "column", true: "requested"}[s.requested])
-		width := 1.8
-		if s.requested {
-			width = 1.6
-		}
-		curve(s, width, func(q chartSample) float64 { return sy(q.r) })
-		for _, d := range s.dots {
-			marker(&b, s.marker, sx(d.TensionN), sy(d.Reading), s.colour, `class="point"`)
-		}
-		b.WriteString("</g>\n")
-	}
-	if reqSeries != nil {
-		extrapolatedLabels(func(q chartSample) float64 {
-			if y := sy(q.hi) - 8; y > plotT+30 {
-				return y
-			}
-			return sy(q.lo) + 16
-		})
-	}
-	// The range and zone labels, each where the curves leave room.
-	rangeText := fmt.Sprintf("calibrated tensions %s–%s N (%s–%s kgf)",
-		fmtNum(lo, 0), fmtNum(hi, 0), fmtNum(KgfFromN(lo), 0), fmtNum(KgfFromN(hi), 0))
-	half := textWidth(rangeText, 10.5)/2 + 4
-	if top, bottom := freeGap(all, sx, sy, (xl+xh)/2-half, (xl+xh)/2+half); bottom-top >= 16 {
-		text(&b, (xl+xh)/2, (top+bottom)/2+4, "middle", 10.5, rangeText, `class="range-label" fill="#333333"`+halo)
-	} else {
-		text(&b, (xl+xh)/2, plotT+14, "middle", 10.5, rangeText, `class="range-label" fill="#333333"`+halo)
-	}
-	zoneWord := "extrapolated"
-	if m.Physical == nil {
-		zoneWord = "not calibrated" // nothing is drawn there
-	}
-	for _, z := range [][2]float64{{plotL, xl}, {xh, plotR}} {
-		if z[1]-z[0] < 16 {
-			continue
-		}
-		cx := (z[0] + z[1]) / 2
-		top, bottom := freeGap(all, sx, sy, cx-8, cx+8)
-		cy := (top + bottom) / 2
-		text(&b, cx+4, cy, "middle", 10.5, zoneWord, fmt.Sprintf(`class="zone-label" font-style="italic" fill="#333333" transform="rotate(-90 %.1f %.1f)"`, cx+4, cy)+halo)
-	}
-	b.WriteString("</g>\n")
-	fmt.Fprintf(&b, `<rect x="%.1f" y="%.1f" width="%.1f" height="%.1f" fill="none" stroke="#000000" stroke-width="1"/>`+"\n", plotL, plotT, plotR-plotL, plotB-plotT)
-
-	// Axes: tension in N at the bottom, kgf above the plot, reading on the
-	// left.
-	for _, v := range ticks(tMin, tMax) {
-		x := sx(v)
-		line(&b, x, axisB, x, axisB+5, `stroke="#000000"`)
-		text(&b, x, axisB+18, "middle", 11, fmtNum(v, -1), `class="tick-n"`)
-	}
-	text(&b, (plotL+plotR)/2, axisB+38, "middle", 13, "spoke tension (N)", `class="axis-label"`)
-	for _, v := range ticks(KgfFromN(tMin), KgfFromN(tMax)) {
-		x := sx(NFromKgf(v))
-		if x < plotL-0.5 || x > plotR+0.5 {
-			continue
-		}
-		line(&b, x, plotT, x, plotT-5, `stroke="#000000"`)
-		text(&b, x, plotT-9, "middle", 11, fmtNum(v, -1), `class="tick-kgf"`)
-	}
-	text(&b, (plotL+plotR)/2, plotT-27, "middle", 13, "spoke tension (kgf)", `class="axis-label"`)
-	for _, v := range ticks(rMin, rMax) {
-		y := sy(v)
-		line(&b, plotL-5, y, plotL, y, `stroke="#000000"`)
-		text(&b, plotL-8, y+4, "end", 11, fmtNum(v, -1), `class="tick-r"`)
-	}
-	ry := (plotT + plotB) / 2
-	text(&b, 22, ry, "middle", 13, fmt.Sprintf("dial reading (units of %s mm)", fmtNum(m.UnitMM, -1)),
-		fmt.Sprintf(`class="axis-label" transform="rotate(-90 22 %.1f)"`, ry))
-
-	// The band panel: the requested band about its aim reading, magnified.
-	if panel {
-		background(panelT, panelB)
-		for _, v := range ticksN(-dMax, dMax, 4) {
-			line(&b, plotL, sd(v), plotR, sd(v), `stroke="#dddddd" stroke-width="0.8"`)
-			line(&b, plotL-5, sd(v), plotL, sd(v), `stroke="#000000"`)
-			text(&b, plotL-8, sd(v)+4, "end", 11, fmtNum(v, -1), `class="tick-d"`)
-		}
-		fmt.Fprintf(&b, `<clipPath id="panel"><rect x="%.1f" y="%.1f" width="%.1f" height="%.1f"/></clipPath>`+"\n", plotL, panelT, plotR-plotL, panelB-panelT)
-		b.WriteString(`<g clip-path="url(#panel)">` + "\n")
-		band("band-detail", true, func(q chartSample, v float64) float64 { return sd(v - q.r) })
-		b.WriteString(`<g class="aim-line">` + "\n")
-		curve(*reqSeries, 1.6, func(chartSample) float64 { return sd(0) })
-		b.WriteString("</g>\n")
-		extrapolatedLabels(func(chartSample) float64 { return sd(0) + 4 })
-		b.WriteString("</g>\n")
-		fmt.Fprintf(&b, `<rect x="%.1f" y="%.1f" width="%.1f" height="%.1f" fill="none" stroke="#000000" stroke-width="1"/>`+"\n", plotL, panelT, plotR-plotL, panelB-panelT)
-		text(&b, plotL+6, panelT+13, "start", 10.5, fmt.Sprintf("%s: 95 %% band magnified, in dial units above and below the reading to aim for", reqSeries.short),
-			`class="panel-title"`+halo)
-		py := (panelT + panelB) / 2
-		text(&b, 22, py, "middle", 11, "± dial units", fmt.Sprintf(`class="axis-label" transform="rotate(-90 22 %.1f)"`, py))
-		// The tension interval at each tension tick, as a conversion of the
-		// aim reading gives it.
-		iy := axisB + 56
-		text(&b, plotR+8, iy, "start", 10.5, "95 % interval of the tension (N)", `class="interval-label"`)
-		for _, v := range ticks(tMin, tMax) {
-			text(&b, sx(v), iy, "middle", 10.5, req.tensionInterval(v), `class="interval-n"`)
-		}
-	}
-
-	// Labels beside the curves' right ends, kept apart.
-	type endLabel struct {
-		y      float64
-		text   string
-		colour string
-		bold   bool
-	}
-	var ends []endLabel
-	for _, s := range all {
-		if n := len(s.pieces); n > 0 {
-			pc := s.pieces[n-1]
-			q := pc[len(pc)-1]
-			ends = append(ends, endLabel{sy(q.r), s.short, s.colour, s.requested})
-		}
-	}
-	sort.Slice(ends, func(i, j int) bool { return ends[i].y < ends[j].y })
-	for i := 1; i < len(ends); i++ {
-		ends[i].y = math.Max(ends[i].y, ends[i-1].y+directLabelMinGapY)
-	}
-	if n := len(ends); n > 0 && ends[n-1].y > plotB {
-		ends[n-1].y = plotB
-		for i := n - 2; i >= 0; i-- {
-			ends[i].y = math.Min(ends[i].y, ends[i+1].y-directLabelMinGapY)
-		}
-	}
-	for _, e := range ends {
-		extra := fmt.Sprintf(`class="end-label" fill="%s"`, e.colour)
-		if e.bold {
-			extra += ` font-weight="bold"`
-		}
-		text(&b, plotR+5, e.y+4, "start", 10.5, e.text, extra)
-	}
-
-	b.Write(lg.Bytes())
-
-	if len(cautionLines) > 0 {
-		text(&b, 24, cautionsY, "start", 13, "Cautions", `class="cautions-title" font-weight="bold"`)
-		for i, l := range cautionLines {
-			yl := cautionsY + 17 + float64(i)*13.5
-			if l.first {
-				text(&b, 26, yl, "start", 11, "•", "")
-			}
-			text(&b, 38, yl, "start", 11, l.text, `class="caution"`)
-		}
-	}
-	b.WriteString("</svg>\n")
-	return b.Bytes(), nil
+	c.Cautions = m.chartCautions(c.req, c.Requested)
+	return c, nil
 }
 
-// tensionInterval is the 95 % tension interval, as "−a/+b" newtons about
-// tensionN, of a conversion of the reading to aim for at tensionN; "–"
-// when there is none.
-func (p *prepared) tensionInterval(tensionN float64) string {
-	tg, err := p.target(tensionN, "/target_tension_n")
-	if err != nil {
-		return "–"
+// TensionInterval converts the requested section's aim reading at
+// tensionN back as a conversion would: the tension it gives and that
+// tension's 95 % interval. ok is false without a requested section, or
+// where there is no such reading.
+func (c Chart) TensionInterval(tensionN float64) (t float64, interval [2]float64, ok bool) {
+	if c.req == nil {
+		return 0, interval, false
 	}
-	res, err := p.convert(tg.Reading, readingPointer)
+	tg, err := c.req.target(tensionN, "/target_tension_n")
 	if err != nil {
-		return "–"
+		return 0, interval, false
 	}
-	return fmt.Sprintf("−%s/+%s", fmtNum(res.TensionN-res.IntervalN[0], 0), fmtNum(res.IntervalN[1]-res.TensionN, 0))
+	res, err := c.req.convert(tg.Reading, readingPointer)
+	if err != nil {
+		return 0, interval, false
+	}
+	return res.TensionN, res.IntervalN, true
 }
-
-// chartDefs are the hatch patterns: light diagonals for tensions outside
-// the calibrated range, dark diagonals on grey for the band where it is
-// extrapolated.
-const chartDefs = `<defs>
-<pattern id="zone-hatch" width="8" height="8" patternUnits="userSpaceOnUse" patternTransform="rotate(45)"><line x1="0" y1="0" x2="0" y2="8" stroke="#c8c8c8" stroke-width="2"/></pattern>
-<pattern id="band-hatch" width="5" height="5" patternUnits="userSpaceOnUse" patternTransform="rotate(-45)"><rect width="5" height="5" fill="#d4d4d4"/><line x1="0" y1="0" x2="0" y2="5" stroke="#000000" stroke-width="1"/></pattern>
-</defs>
-`
 
 // chartTensions are the tensions sampled: an even grid over [tMin, tMax]
 // plus the calibrated range's ends and each column's first and last
@@ -527,9 +142,9 @@ func chartTensions(m *Model, tMin, tMax float64) []float64 {
 
 // sampleTargets evaluates the reading to aim for, exactly as Target does,
 // at each tension; tensions with no answer split the curve.
-func (p *prepared) sampleTargets(ts []float64) [][]chartSample {
-	var pieces [][]chartSample
-	var cur []chartSample
+func (p *prepared) sampleTargets(ts []float64) [][]ChartSample {
+	var pieces [][]ChartSample
+	var cur []ChartSample
 	for _, t := range ts {
 		tg, err := p.target(t, "/target_tension_n")
 		if err != nil || !finite(tg.Reading) || !finite(tg.ReadingInterval[0]) || !finite(tg.ReadingInterval[1]) {
@@ -538,8 +153,8 @@ func (p *prepared) sampleTargets(ts []float64) [][]chartSample {
 			}
 			continue
 		}
-		cur = append(cur, chartSample{t: t, r: tg.Reading, lo: tg.ReadingInterval[0], hi: tg.ReadingInterval[1],
-			extrapolated: tg.Status == StatusExtrapolated, unreliable: !tg.Reliable})
+		cur = append(cur, ChartSample{TensionN: t, Reading: tg.Reading, Low: tg.ReadingInterval[0], High: tg.ReadingInterval[1],
+			Extrapolated: tg.Status == StatusExtrapolated, Unreliable: !tg.Reliable})
 	}
 	if len(cur) > 0 {
 		pieces = append(pieces, cur)
@@ -547,39 +162,10 @@ func (p *prepared) sampleTargets(ts []float64) [][]chartSample {
 	return pieces
 }
 
-type chartSegment struct {
-	pts          []chartSample
-	extrapolated bool
-}
-
-// segments splits a contiguous piece where it changes between calibrated
-// or interpolated and extrapolated. Neighbouring segments share the
-// boundary sample, which is always the non-extrapolated one, so the curve
-// stays joined and no solid segment reaches an extrapolated tension.
-func segments(pc []chartSample) []chartSegment {
-	var out []chartSegment
-	for i, q := range pc {
-		if i == 0 || q.extrapolated != pc[i-1].extrapolated {
-			if i > 0 && !q.extrapolated {
-				// Extrapolated → not: the boundary sample ends the
-				// extrapolated segment too.
-				out[len(out)-1].pts = append(out[len(out)-1].pts, q)
-			}
-			seg := chartSegment{extrapolated: q.extrapolated}
-			if i > 0 && q.extrapolated {
-				seg.pts = append(seg.pts, pc[i-1])
-			}
-			out = append(out, seg)
-		}
-		out[len(out)-1].pts = append(out[len(out)-1].pts, q)
-	}
-	return out
-}
-
-// chartCautions are the sentences printed under the plot: the requested
-// section's extrapolation and reliability, its section-level warnings and
-// cautions, and the calibration's own warnings.
-func (m *Model) chartCautions(req *prepared, s *chartSeries) []string {
+// chartCautions are the sentences a drawing prints under its plot: the
+// requested section's extrapolation and reliability, its section-level
+// warnings and cautions, and the calibration's own warnings.
+func (m *Model) chartCautions(req *prepared, s *ChartCurve) []string {
 	var out []string
 	seen := map[string]bool{}
 	add := func(c string) {
@@ -589,8 +175,8 @@ func (m *Model) chartCautions(req *prepared, s *chartSeries) []string {
 		}
 	}
 	if req != nil && s != nil {
-		ext := tensionRuns(s.pieces, func(q chartSample) bool { return q.extrapolated })
-		unrel := tensionRuns(s.pieces, func(q chartSample) bool { return q.unreliable })
+		ext := tensionRuns(s.Pieces, func(q ChartSample) bool { return q.Extrapolated })
+		unrel := tensionRuns(s.Pieces, func(q ChartSample) bool { return q.Unreliable })
 		name := req.sec.describe()
 		switch {
 		case ext != "" && !req.inside:
@@ -631,7 +217,7 @@ func (m *Model) chartCautions(req *prepared, s *chartSeries) []string {
 // tensionRuns names the tension ranges where keep holds, as
 // "220–400 N and 1600–1780 N": each run reaches out to its neighbouring
 // samples, where the curve changes.
-func tensionRuns(pieces [][]chartSample, keep func(chartSample) bool) string {
+func tensionRuns(pieces [][]ChartSample, keep func(ChartSample) bool) string {
 	var runs []string
 	for _, pc := range pieces {
 		for i := 0; i < len(pc); i++ {
@@ -642,12 +228,12 @@ func tensionRuns(pieces [][]chartSample, keep func(chartSample) bool) string {
 			for j+1 < len(pc) && keep(pc[j+1]) {
 				j++
 			}
-			a, z := pc[i].t, pc[j].t
+			a, z := pc[i].TensionN, pc[j].TensionN
 			if i > 0 {
-				a = pc[i-1].t
+				a = pc[i-1].TensionN
 			}
 			if j+1 < len(pc) {
-				z = pc[j+1].t
+				z = pc[j+1].TensionN
 			}
 			runs = append(runs, fmt.Sprintf("%s–%s N", fmtNum(a, 0), fmtNum(z, 0)))
 			i = j
@@ -662,228 +248,12 @@ func tensionRuns(pieces [][]chartSample, keep func(chartSample) bool) string {
 	return strings.Join(runs[:len(runs)-1], ", ") + " and " + runs[len(runs)-1]
 }
 
-// freeGap returns the tallest vertical stretch of the plot that no curve,
-// band or marker crosses between x positions xa and xb, for a label.
-func freeGap(all []chartSeries, sx, sy func(float64) float64, xa, xb float64) (top, bottom float64) {
-	type span struct{ a, b float64 }
-	var spans []span
-	const pad = 3.0
-	for _, s := range all {
-		for _, pc := range s.pieces {
-			for i, q := range pc {
-				x := sx(q.t)
-				near := x >= xa && x <= xb
-				// A sample just outside the range still draws a line into it.
-				if !near && i > 0 {
-					px := sx(pc[i-1].t)
-					near = (px < xa) != (x < xa) || (px < xb) != (x < xb)
-				}
-				if !near {
-					continue
-				}
-				y1, y2 := sy(q.r), sy(q.r)
-				if s.requested {
-					y1, y2 = sy(q.hi), sy(q.lo)
-				}
-				spans = append(spans, span{math.Min(y1, y2) - pad, math.Max(y1, y2) + pad})
-				if i > 0 && !(sx(pc[i-1].t) >= xa && sx(pc[i-1].t) <= xb) {
-					p := pc[i-1]
-					spans = append(spans, span{math.Min(sy(p.r), sy(q.r)) - pad, math.Max(sy(p.r), sy(q.r)) + pad})
-				}
-			}
-		}
-		for _, d := range s.dots {
-			if x := sx(d.TensionN); x >= xa-6 && x <= xb+6 {
-				spans = append(spans, span{sy(d.Reading) - 6, sy(d.Reading) + 6})
-			}
-		}
-	}
-	sort.Slice(spans, func(i, j int) bool { return spans[i].a < spans[j].a })
-	top, bottom = plotT, plotT
-	cur := plotT
-	consider := func(a, z float64) {
-		if z-a > bottom-top {
-			top, bottom = a, z
-		}
-	}
-	for _, sp := range spans {
-		if sp.a > cur {
-			consider(cur, math.Min(sp.a, plotB))
-		}
-		cur = math.Max(cur, sp.b)
-	}
-	if cur < plotB {
-		consider(cur, plotB)
-	}
-	return top, bottom
-}
-
-// textWidth estimates a label's width: about 0.56 em per character in the
-// sans-serif faces the chart names.
-func textWidth(s string, size float64) float64 { return 0.56 * size * float64(len([]rune(s))) }
-
-// drawLegend writes the legend at the right of the plot and returns its
-// lowest y.
-func (m *Model) drawLegend(b *bytes.Buffer, all []chartSeries, req *chartSeries, lo, hi float64) float64 {
-	x := legendX
-	y := plotT - 4
-	text(b, x, y, "start", 13, "Legend", `font-weight="bold"`)
-	y += 20
-	entry := func(label string, sample func(y float64)) {
-		lines := wrapWords(label, legendWrap)
-		sample(y)
-		for i, l := range lines {
-			text(b, x+44, y+4+float64(i)*lineGap, "start", 11, l, `class="legend"`)
-		}
-		y += float64(len(lines))*lineGap + 9
-	}
-	for _, s := range all {
-		if s.requested {
-			// Drawn as the curve mostly is: dotted on a hatched band when
-			// extrapolated, solid on grey otherwise.
-			ext, n := 0, 0
-			for _, pc := range s.pieces {
-				for _, q := range pc {
-					n++
-					if q.extrapolated {
-						ext++
-					}
-				}
-			}
-			fill, stroke := `fill="#bdbdbd" fill-opacity="0.8"`, `stroke="#000000" stroke-width="1.6"`
-			if 2*ext > n {
-				fill, stroke = `fill="url(#band-hatch)"`, `stroke="#000000" stroke-width="2.4" stroke-linecap="round" stroke-dasharray="`+dotted+`"`
-			}
-			entry(s.label, func(y float64) {
-				fmt.Fprintf(b, `<rect x="%.1f" y="%.1f" width="34" height="12" %s stroke="#000000" stroke-width="0.8"/>`+"\n", x, y-6, fill)
-				line(b, x, y, x+34, y, stroke)
-			})
-			continue
-		}
-		entry(s.label, func(y float64) {
-			extra := fmt.Sprintf(`stroke="%s" stroke-width="1.8"`, s.colour)
-			if s.dash != "" {
-				extra += fmt.Sprintf(` stroke-dasharray="%s"`, s.dash)
-			}
-			line(b, x, y, x+34, y, extra)
-			marker(b, s.marker, x+17, y, s.colour, "")
-		})
-	}
-	anyExt, reqExt := false, false
-	for _, s := range all {
-		for _, pc := range s.pieces {
-			for _, q := range pc {
-				anyExt = anyExt || q.extrapolated
-				reqExt = reqExt || (s.requested && q.extrapolated)
-			}
-		}
-	}
-	if anyExt {
-		entry("dotted: extrapolated, the fitted tool model beyond the calibrated sections or tensions", func(y float64) {
-			line(b, x, y, x+34, y, fmt.Sprintf(`stroke="#000000" stroke-width="2.8" stroke-linecap="round" stroke-dasharray="%s"`, dotted))
-		})
-	}
-	if reqExt {
-		entry("hatched band: the 95 % band where it is extrapolated", func(y float64) {
-			fmt.Fprintf(b, `<rect x="%.1f" y="%.1f" width="34" height="12" fill="url(#band-hatch)" stroke="#000000" stroke-width="0.8"/>`+"\n", x, y-6)
-		})
-	}
-	entry(fmt.Sprintf("light hatching: tensions outside the calibrated %s–%s N", fmtNum(lo, 0), fmtNum(hi, 0)), func(y float64) {
-		fmt.Fprintf(b, `<rect x="%.1f" y="%.1f" width="34" height="12" fill="url(#zone-hatch)" stroke="#333333" stroke-width="0.8"/>`+"\n", x, y-6)
-	})
-	entry("markers: the calibration's own points", func(y float64) {
-		marker(b, "circle", x+17, y, "#000000", "")
-	})
-	return y
-}
-
-// title is the chart's first line: the tool and the calibration version.
-func (h ChartHeading) title() string {
-	label := h.ToolLabel
-	if label == "" {
-		label = "unnamed tool"
-	}
-	serial := h.ToolSerial
-	if serial == "" {
-		serial = "not recorded"
-	}
-	return fmt.Sprintf("Tensiometer %s · serial %s · calibration version %d", label, serial, h.CalibrationVersion)
-}
-
-// subtitle says what is drawn and from what.
-func (m *Model) subtitle(h ChartHeading) string {
-	parts := []string{"Dial reading to aim for against spoke tension"}
-	if h.Source != "" {
-		parts = append(parts, "from "+sourceWords(h.Source))
-	}
-	if !h.Published.IsZero() {
-		parts = append(parts, "published "+h.Published.UTC().Format("2006-01-02"))
-	}
-	if len(m.Columns) == 1 {
-		parts = append(parts, "1 calibrated section")
-	} else {
-		parts = append(parts, fmt.Sprintf("%d calibrated sections", len(m.Columns)))
-	}
-	if m.Physical != nil {
-		parts = append(parts, "fitted tool model beyond them")
-	} else {
-		parts = append(parts, "no tool model")
-	}
-	return strings.Join(parts, " · ")
-}
-
-func sourceWords(source string) string {
-	switch source {
-	case SourceMakerTable:
-		return "maker's table"
-	case SourceKnownTension:
-		return "known tensions measured in the shop"
-	}
-	return source
-}
-
 // shortSection is the label beside a curve: "1.8 mm", "2.3 × 1.2 mm".
 func shortSection(s section) string {
 	if s.Spec.Profile == "round" {
 		return fmtNum(s.Spec.DiameterMM, -1) + " mm"
 	}
 	return fmtNum(s.Spec.WidthMM, -1) + " × " + fmtNum(s.Spec.ThicknessMM, -1) + " mm"
-}
-
-// text writes one escaped text element.
-func text(b *bytes.Buffer, x, y float64, anchor string, size float64, s, extra string) {
-	fmt.Fprintf(b, `<text x="%.1f" y="%.1f" text-anchor="%s" font-size="%g"`, x, y, anchor, size)
-	if extra != "" {
-		b.WriteString(" " + extra)
-	}
-	b.WriteString(">")
-	_ = xml.EscapeText(b, []byte(s))
-	b.WriteString("</text>\n")
-}
-
-func line(b *bytes.Buffer, x1, y1, x2, y2 float64, extra string) {
-	fmt.Fprintf(b, `<line x1="%.1f" y1="%.1f" x2="%.1f" y2="%.1f" %s/>`+"\n", x1, y1, x2, y2, extra)
-}
-
-// marker draws a point marker: hollow shapes with the series' colour.
-func marker(b *bytes.Buffer, kind string, x, y float64, colour, extra string) {
-	style := fmt.Sprintf(`data-marker="%s" fill="#ffffff" stroke="%s" stroke-width="1.4" %s`, kind, colour, extra)
-	switch kind {
-	case "square":
-		fmt.Fprintf(b, `<rect x="%.1f" y="%.1f" width="7" height="7" %s/>`+"\n", x-3.5, y-3.5, style)
-	case "triangle":
-		fmt.Fprintf(b, `<path d="M%.1f %.1fL%.1f %.1fL%.1f %.1fZ" %s/>`+"\n", x, y-4.8, x+4.4, y+3.2, x-4.4, y+3.2, style)
-	case "triangle-down":
-		fmt.Fprintf(b, `<path d="M%.1f %.1fL%.1f %.1fL%.1f %.1fZ" %s/>`+"\n", x, y+4.8, x+4.4, y-3.2, x-4.4, y-3.2, style)
-	case "diamond":
-		fmt.Fprintf(b, `<path d="M%.1f %.1fL%.1f %.1fL%.1f %.1fL%.1f %.1fZ" %s/>`+"\n", x, y-5, x+4.5, y, x, y+5, x-4.5, y, style)
-	case "cross":
-		fmt.Fprintf(b, `<path d="M%.1f %.1fL%.1f %.1fM%.1f %.1fL%.1f %.1f" %s/>`+"\n", x-3.8, y-3.8, x+3.8, y+3.8, x-3.8, y+3.8, x+3.8, y-3.8, style)
-	case "plus":
-		fmt.Fprintf(b, `<path d="M%.1f %.1fL%.1f %.1fM%.1f %.1fL%.1f %.1f" %s/>`+"\n", x-4.5, y, x+4.5, y, x, y-4.5, x, y+4.5, style)
-	default:
-		fmt.Fprintf(b, `<circle cx="%.1f" cy="%.1f" r="3.8" %s/>`+"\n", x, y, style)
-	}
 }
 
 // fmtNum prints v with prec decimals, or the shortest form when prec < 0.
@@ -894,56 +264,10 @@ func fmtNum(v float64, prec int) string {
 	return strconv.FormatFloat(v, 'f', prec, 64)
 }
 
-// wrapWords breaks s into lines of at most n characters at spaces.
-func wrapWords(s string, n int) []string {
-	var out []string
-	cur := ""
-	for _, w := range strings.Fields(s) {
-		switch {
-		case cur == "":
-			cur = w
-		case len([]rune(cur))+1+len([]rune(w)) <= n:
-			cur += " " + w
-		default:
-			out = append(out, cur)
-			cur = w
-		}
-	}
-	if cur != "" {
-		out = append(out, cur)
-	}
-	return out
-}
-
 func upperFirst(s string) string {
 	if s == "" {
 		return s
 	}
 	r := []rune(s)
 	return strings.ToUpper(string(r[0])) + string(r[1:])
-}
-
-// ticks returns round tick values covering [lo, hi] with a 1-2-5 step,
-// about eight intervals.
-func ticks(lo, hi float64) []float64 { return ticksN(lo, hi, 8) }
-
-// ticksN is ticks aiming for about n intervals.
-func ticksN(lo, hi float64, n int) []float64 {
-	if !(hi > lo) || !finite(lo) || !finite(hi) || n < 1 {
-		return nil
-	}
-	raw := (hi - lo) / float64(n)
-	mag := math.Pow(10, math.Floor(math.Log10(raw)))
-	step := mag
-	for _, f := range []float64{1, 2, 5, 10} {
-		if f*mag >= raw {
-			step = f * mag
-			break
-		}
-	}
-	var out []float64
-	for v := math.Ceil(lo/step) * step; v <= hi+1e-9*step; v += step {
-		out = append(out, math.Round(v/step)*step)
-	}
-	return out
 }

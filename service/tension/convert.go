@@ -1,6 +1,10 @@
 package tension
 
-import "math"
+import (
+	"math"
+
+	"wheelbench/service/field"
+)
 
 // Result thresholds (DESIGN.md §4.2).
 const (
@@ -98,7 +102,7 @@ func (m *Model) prepare(spec SpokeSpec, at string) (prepared, error) {
 		return prepared{}, err
 	}
 	if len(m.Columns) == 0 {
-		return prepared{}, impossible(at, "the model has no calibrated columns")
+		return prepared{}, field.Unprocessable(at, "the model has no calibrated columns")
 	}
 	p := prepared{m: m, at: at, sec: sec, col: -1, nbLo: -1, nbHi: -1,
 		es: evalSection{ei0: sec.EI, ea: sec.EA, t: sec.T, kEI: 1, iK: -1, iC: -1}}
@@ -262,7 +266,7 @@ func (p *prepared) sensitivityFrom(reading, teGuess float64) *float64 {
 }
 
 // Convert turns one dial reading on the given section into a tension.
-// Errors are *FieldError with pointers "/spoke…" and "/reading".
+// Errors are *field.Error with pointers "/spoke…" and "/reading".
 func (m *Model) Convert(spec SpokeSpec, reading float64) (Result, error) {
 	p, err := m.prepare(spec, "/spoke")
 	if err != nil {
@@ -279,7 +283,7 @@ func readingPointer() string { return "/reading" }
 func (p *prepared) convert(reading float64, at func() string) (Result, error) {
 	m := p.m
 	if !finite(reading) || math.Abs(reading) > maxReading {
-		return Result{}, badField(at(), "reading must be a finite dial reading")
+		return Result{}, field.Invalid(at(), "reading must be a finite dial reading")
 	}
 	res := Result{Reading: reading, Reliable: true, StiffnessRatio: p.ratio, DeltaDiameterMM: p.deltaD}
 	// Warnings and cautions gather on the stack; the result gets one
@@ -316,20 +320,20 @@ func (p *prepared) convert(reading float64, at func() string) (Result, error) {
 	ph := m.Physical
 	if ph == nil {
 		if p.col >= 0 {
-			return Result{}, impossible(at(), "reading %g is outside the calibrated column's table and the calibration cannot identify a tool model to go beyond it: %s", reading, m.Unidentified)
+			return Result{}, field.Unprocessable(at(), "reading %g is outside the calibrated column's table and the calibration cannot identify a tool model to go beyond it: %s", reading, m.Unidentified)
 		}
-		return Result{}, impossible(p.at, "%s", m.Unidentified)
+		return Result{}, field.Unprocessable(p.at, "%s", m.Unidentified)
 	}
 	unit := m.UnitMM
 	t, st, ok := inverse(ph.Params, p.es, unit, reading)
 	if !ok {
-		return Result{}, impossible(at(), "reading %g is beyond what the tool model can produce for a %s spoke; check the reading and the section", reading, p.sec.describe())
+		return Result{}, field.Unprocessable(at(), "reading %g is beyond what the tool model can produce for a %s spoke; check the reading and the section", reading, p.sec.describe())
 	}
 	var gbuf [16]float64
 	g := paramBuf(gbuf[:], len(ph.Params))
 	drdT := gradient(ph.Params, p.es, unit, st, g)
 	if !(drdT > 0) {
-		return Result{}, impossible(at(), "the tool model's curve is not monotone at reading %g for this section; no tension is given", reading)
+		return Result{}, field.Unprocessable(at(), "the tool model's curve is not monotone at reading %g for this section; no tension is given", reading)
 	}
 	w := m.halfWidthUnits(g)
 	lo, hi, err := p.interval(reading, w, g, st.teff, at)
@@ -358,7 +362,7 @@ func (p *prepared) convert(reading float64, at func() string) (Result, error) {
 func (p *prepared) interval(reading, w0 float64, g []float64, teGuess float64, at func() string) (lo, hi float64, err error) {
 	lo, hi, ok := p.m.bandEnds(p.es, reading, w0, g, teGuess)
 	if !ok {
-		return 0, 0, impossible(at(), "reading %g is within the uncertainty band of the highest reading the tool model can produce for this section; the tension has no upper bound", reading)
+		return 0, 0, field.Unprocessable(at(), "reading %g is within the uncertainty band of the highest reading the tool model can produce for this section; the tension has no upper bound", reading)
 	}
 	return lo, hi, nil
 }
@@ -432,7 +436,7 @@ func (p *prepared) finish(reliable *bool, unchecked bool, warns []Warning, cauts
 }
 
 // Target returns the reading at which the section reaches tensionN.
-// Errors are *FieldError with pointers "/spoke…" and "/target_tension_n".
+// Errors are *field.Error with pointers "/spoke…" and "/target_tension_n".
 func (m *Model) Target(spec SpokeSpec, tensionN float64) (Target, error) {
 	p, err := m.prepare(spec, "/spoke")
 	if err != nil {
@@ -444,7 +448,7 @@ func (m *Model) Target(spec SpokeSpec, tensionN float64) (Target, error) {
 func (p *prepared) target(tn float64, at string) (Target, error) {
 	m := p.m
 	if !finite(tn) || tn <= 0 || tn > maxTensionN {
-		return Target{}, badField(at, "the target tension must be positive and at most %d N", maxTensionN)
+		return Target{}, field.Invalid(at, "the target tension must be positive and at most %d N", maxTensionN)
 	}
 	tg := Target{TensionN: tn, TensionKgf: KgfFromN(tn), TensionLbf: LbfFromN(tn), Reliable: true,
 		StiffnessRatio: p.ratio, DeltaDiameterMM: p.deltaD}
@@ -478,20 +482,20 @@ func (p *prepared) target(tn float64, at string) (Target, error) {
 	ph := m.Physical
 	if ph == nil {
 		if p.col >= 0 {
-			return Target{}, impossible(at, "%g N is outside the calibrated column's table and the calibration cannot identify a tool model to go beyond it: %s", tn, m.Unidentified)
+			return Target{}, field.Unprocessable(at, "%g N is outside the calibrated column's table and the calibration cannot identify a tool model to go beyond it: %s", tn, m.Unidentified)
 		}
-		return Target{}, impossible(p.at, "%s", m.Unidentified)
+		return Target{}, field.Unprocessable(p.at, "%s", m.Unidentified)
 	}
 	unit := m.UnitMM
 	r, st, ok := forward(ph.Params, p.es, unit, tn)
 	if !ok {
-		return Target{}, impossible(at, "the tool model cannot reach %g N on a %s spoke", tn, p.sec.describe())
+		return Target{}, field.Unprocessable(at, "the tool model cannot reach %g N on a %s spoke", tn, p.sec.describe())
 	}
 	var gbuf [16]float64
 	g := paramBuf(gbuf[:], len(ph.Params))
 	drdT := gradient(ph.Params, p.es, unit, st, g)
 	if !(drdT > 0) {
-		return Target{}, impossible(at, "the tool model's curve is not monotone at %g N for this section", tn)
+		return Target{}, field.Unprocessable(at, "the tool model's curve is not monotone at %g N for this section", tn)
 	}
 	w := m.halfWidthUnits(g)
 	w, widened, checked := p.widenUnits(tn, w, drdT)

@@ -7,13 +7,15 @@ import (
 	"testing"
 
 	"github.com/google/go-cmp/cmp"
+
+	"wheelbench/service/field"
 )
 
-func fieldErr(t *testing.T, err error) *FieldError {
+func fieldErr(t *testing.T, err error) *field.Error {
 	t.Helper()
-	var fe *FieldError
+	var fe *field.Error
 	if !errors.As(err, &fe) {
-		t.Fatalf("want a *FieldError, got %v", err)
+		t.Fatalf("want a *field.Error, got %v", err)
 	}
 	return fe
 }
@@ -235,12 +237,6 @@ func TestRefusals(t *testing.T) {
 		t.Errorf("pointers (-want +got):\n%s", diff)
 	}
 
-	// Request-level: inline calibration pointers are prefixed.
-	req := ConversionRequest{Calibration: &bad, Spoke: whole(steelRound(2.0)), Readings: []float64{50}}
-	_, err = req.FitInline(Tool{})
-	if fe := fieldErr(t, err); fe.Pointer != "/calibration/columns/1/points/4/reading" {
-		t.Errorf("inline pointer %q", fe.Pointer)
-	}
 	// Out-of-reach reading in a request points at its index.
 	_, err = m.ConvertRequest(ConversionRequest{Spoke: whole(steelRound(2.6)), Readings: []float64{math.Round(synthReading(t, steelRound(2.6), 1000)), 1e5}})
 	if fe := fieldErr(t, err); fe.Pointer != "/readings/1" {
@@ -255,7 +251,7 @@ func collect(err error, out *[]string) {
 		}
 		return
 	}
-	var fe *FieldError
+	var fe *field.Error
 	if errors.As(err, &fe) {
 		*out = append(*out, fe.Pointer)
 	}

@@ -2,7 +2,8 @@
 // three-point tensiometer's calibration (its table of readings per spoke
 // section), the fitted physical model of the tool, conversion between dial
 // readings and tension with honest 95 % intervals, the audit of one wheel's
-// readings, and an SVG chart of a calibration.
+// readings, and the curves a chart of a calibration draws (api/chart draws
+// them).
 //
 // Conversion follows an order of authority. A section that is a calibrated
 // column is interpolated monotonically inside that column (method
@@ -16,10 +17,16 @@
 // calibration beside it at the same tension (edge.go), and a profile no
 // column has carries a warning to verify the tool against a known tension.
 //
+// Refused input is *field.Error, with an RFC 6901 pointer into the request
+// body as the client sent it: 400 for a malformed or absurd value, 422 for
+// one that is well-formed but impossible (the model cannot be identified,
+// a column is not monotone, a reading is beyond what the tool can produce).
+//
 // The package is pure: no context, no I/O, no logging, deterministic. It
-// imports the standard library, gonum (numerics) and wheelbench/service/spoke
-// (sections and materials) only; it must not import the api, store or cmd
-// packages, nor service itself.
+// imports the standard library, gonum (numerics), wheelbench/service/spoke
+// (sections and materials) and wheelbench/service/field (the field-error
+// type) only; it must not import the api, store or cmd packages, nor
+// service itself.
 //
 // Units: forces in N, lengths in mm, moduli in GPa (1 GPa = 1000 N/mm²),
 // readings in dial units of the tool (unit_mm millimetres each).

@@ -33,7 +33,7 @@ type fitPoint struct {
 // Known-tension columns added to a maker's table refine their own section
 // with an EI factor and a reading offset.
 //
-// Errors are *FieldError (joined when several): pointers into the tool body
+// Errors are *field.Error (joined when several): pointers into the tool body
 // ("/unit_mm") and the calibration body ("/columns/2/points/5/reading").
 // A calibration that cannot identify the tool model is not an error: the
 // Model then has no Physical part and Unidentified says why, and converting

@@ -13,24 +13,28 @@ import (
 func FuzzConvert(f *testing.F) {
 	f.Add([]byte(`{"calibration":{"columns":[{"spoke":{"diameter_mm":1.8,"material":"stainless_steel"},"points":[{"tension_n":500,"reading":20},{"tension_n":1000,"reading":30}]},{"spoke":{"diameter_mm":2.0,"material":"stainless_steel"},"points":[{"tension_n":500,"reading":25},{"tension_n":1000,"reading":36}]}]},"spoke":{"diameter_mm":2.3,"material":"stainless_steel"},"readings":[30,40]}`))
 	f.Fuzz(func(t *testing.T, data []byte) {
-		var req ConversionRequest
-		if json.Unmarshal(data, &req) != nil || req.Calibration == nil {
+		// The request body of a conversion with an inline calibration.
+		var body struct {
+			Calibration *Calibration `json:"calibration"`
+			ConversionRequest
+		}
+		if json.Unmarshal(data, &body) != nil || body.Calibration == nil {
 			return
 		}
-		if len(req.Calibration.Columns) > 8 || len(req.Readings) > 50 {
+		if len(body.Calibration.Columns) > 8 || len(body.Readings) > 50 {
 			return // keep each input fast; limits are checked elsewhere
 		}
-		for _, c := range req.Calibration.Columns {
+		for _, c := range body.Calibration.Columns {
 			if len(c.Points) > 30 {
 				return
 			}
 		}
-		m, err := req.FitInline(Tool{})
+		m, err := Fit(*body.Calibration, Tool{})
 		if err != nil {
 			return
 		}
 		checkFinite(t, "model", reflect.ValueOf(m))
-		out, err := m.ConvertRequest(req)
+		out, err := m.ConvertRequest(body.ConversionRequest)
 		if err != nil {
 			return
 		}

@@ -4,6 +4,7 @@ import (
 	"errors"
 	"strings"
 
+	"wheelbench/service/field"
 	"wheelbench/service/spoke"
 )
 
@@ -19,7 +20,7 @@ func measured(s spoke.Spec, at string) (sec SpokeSpec, assumed bool, err error) 
 	if len(ps) > 0 {
 		errs := make([]error, 0, len(ps))
 		for _, p := range ps {
-			errs = append(errs, badField(at+p.Pointer, "%s", p.Message))
+			errs = append(errs, field.Invalid(at+p.Pointer, "%s", p.Message))
 		}
 		return SpokeSpec{}, false, errors.Join(errs...)
 	}

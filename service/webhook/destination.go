@@ -8,6 +8,8 @@ import (
 	"strings"
 
 	"golang.org/x/net/idna"
+
+	"wheelbench/service/field"
 )
 
 // MaxURLLength bounds an endpoint URL (common practice for URLs that must
@@ -148,47 +150,47 @@ func embeddedIPv4(ip netip.Addr) (netip.Addr, bool) {
 // number but is no IP literal ("2130706433", "0x7f.1") is refused always.
 // Names are judged after IDNA's lookup mapping (non-ASCII full stops,
 // fullwidth forms). Host names are otherwise not resolved here: the sender
-// checks every address it actually connects to. Errors are *FieldError at "/url":
+// checks every address it actually connects to. Errors are *field.Error at "/url":
 // malformed (400) or refused destination (422).
 func CheckURL(raw string, allowPrivate bool) error {
 	const ptr = "/url"
 	if len(raw) > MaxURLLength {
-		return invalid(ptr, fmt.Sprintf("must be at most %d bytes", MaxURLLength))
+		return field.Invalid(ptr, "must be at most %d bytes", MaxURLLength)
 	}
 	u, err := url.Parse(raw)
 	if err != nil {
-		return invalid(ptr, "is not a valid URL")
+		return field.Invalid(ptr, "is not a valid URL")
 	}
 	if u.Scheme != "https" && u.Scheme != "http" {
-		return invalid(ptr, "must be an absolute http or https URL")
+		return field.Invalid(ptr, "must be an absolute http or https URL")
 	}
 	if u.Opaque != "" || u.Host == "" {
-		return invalid(ptr, "must name a host (https://host/path)")
+		return field.Invalid(ptr, "must name a host (https://host/path)")
 	}
 	if u.User != nil {
-		return invalid(ptr, "must not contain a user name or password")
+		return field.Invalid(ptr, "must not contain a user name or password")
 	}
 	if p := u.Port(); p != "" || strings.HasSuffix(u.Host, ":") {
 		n, err := strconv.Atoi(p)
 		if err != nil || n < 1 || n > 65535 || p != strconv.Itoa(n) {
-			return invalid(ptr, "port must be a number from 1 to 65535")
+			return field.Invalid(ptr, "port must be a number from 1 to 65535")
 		}
 	}
 	host := u.Hostname()
 	if host == "" {
-		return invalid(ptr, "must name a host (https://host/path)")
+		return field.Invalid(ptr, "must name a host (https://host/path)")
 	}
 	if ip, err := netip.ParseAddr(host); err == nil {
 		if ip.Zone() != "" {
-			return invalid(ptr, "must not carry an IPv6 zone")
+			return field.Invalid(ptr, "must not carry an IPv6 zone")
 		}
 		if err := CheckAddr(ip, allowPrivate); err != nil {
-			return unprocessable(ptr, "must not point at "+err.(*AddrError).Range)
+			return field.Unprocessable(ptr, "must not point at %s", err.(*AddrError).Range)
 		}
 		return nil
 	}
 	if strings.Contains(u.Host, "[") {
-		return invalid(ptr, "has a bracketed host that is not an IPv6 address")
+		return field.Invalid(ptr, "has a bracketed host that is not an IPv6 address")
 	}
 	// A name is judged in the form a resolver looks up: IDNA's lookup
 	// mapping (UTS #46) turns the ideographic and fullwidth full stops
@@ -197,23 +199,23 @@ func CheckURL(raw string, allowPrivate bool) error {
 	// are judged as 127.0.0.1 and localhost.
 	ascii, err := idna.Lookup.ToASCII(host)
 	if err != nil {
-		return invalid(ptr, "host is not a valid domain name")
+		return field.Invalid(ptr, "host is not a valid domain name")
 	}
 	if ip, err := netip.ParseAddr(ascii); err == nil {
 		if err := CheckAddr(ip, allowPrivate); err != nil {
-			return unprocessable(ptr, "must not point at "+err.(*AddrError).Range)
+			return field.Unprocessable(ptr, "must not point at %s", err.(*AddrError).Range)
 		}
 		return nil
 	}
 	name := strings.TrimSuffix(strings.ToLower(ascii), ".")
 	if name == "" {
-		return invalid(ptr, "must name a host (https://host/path)")
+		return field.Invalid(ptr, "must name a host (https://host/path)")
 	}
 	if looksNumeric(name) {
-		return invalid(ptr, "host must be a DNS name or a plain IP address")
+		return field.Invalid(ptr, "host must be a DNS name or a plain IP address")
 	}
 	if !allowPrivate && (name == "localhost" || strings.HasSuffix(name, ".localhost")) {
-		return unprocessable(ptr, "must not point at localhost (RFC 6761)")
+		return field.Unprocessable(ptr, "must not point at localhost (RFC 6761)")
 	}
 	return nil
 }

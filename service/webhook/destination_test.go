@@ -7,6 +7,8 @@ import (
 	"net/netip"
 	"strings"
 	"testing"
+
+	"wheelbench/service/field"
 )
 
 // Each row: an address, the range and RFC that put it there, and whether it
@@ -144,8 +146,8 @@ func randomIn(r *rand.Rand, pfx netip.Prefix) netip.Addr {
 func TestCheckURL(t *testing.T) {
 	const (
 		ok    = iota // accepted
-		bad          // 400-class FieldError
-		unpro        // 422-class FieldError
+		bad          // 400-class field error
+		unpro        // 422-class field error
 	)
 	// Sources: URL syntax per RFC 3986 as net/url parses it; ports 1-65535
 	// (RFC 793, port 0 reserved); user info and the length limit refused as
@@ -215,12 +217,12 @@ func TestCheckURL(t *testing.T) {
 				want = tt.allowed
 			}
 			err := CheckURL(tt.url, allow)
-			var fe *FieldError
+			var fe *field.Error
 			switch {
 			case want == ok && err != nil:
 				t.Errorf("CheckURL(%q, %v) = %v, want accepted", tt.url, allow, err)
-			case want != ok && (!errors.As(err, &fe) || fe.FieldPointer() != "/url" || fe.IsUnprocessable() != (want == unpro)):
-				t.Errorf("CheckURL(%q, %v) = %#v, want a FieldError at /url, unprocessable %v", tt.url, allow, err, want == unpro)
+			case want != ok && (!errors.As(err, &fe) || fe.Pointer != "/url" || fe.Unprocessable != (want == unpro)):
+				t.Errorf("CheckURL(%q, %v) = %#v, want a field error at /url, unprocessable %v", tt.url, allow, err, want == unpro)
 			}
 		}
 	}

@@ -5,6 +5,8 @@ import (
 	"encoding/base64"
 	"fmt"
 	"strings"
+
+	"wheelbench/service/field"
 )
 
 // SecretPrefix starts every signing secret.
@@ -31,19 +33,19 @@ func NewSecret() (string, error) {
 
 // ParseSecret returns the HMAC key of a secret: the standard-base64-decoded
 // part after SecretPrefix, which must be present. The key must be
-// MinSecretBytes to MaxSecretBytes long. Errors are *FieldError with pointer
+// MinSecretBytes to MaxSecretBytes long. Errors are *field.Error with pointer
 // "/secret".
 func ParseSecret(s string) ([]byte, error) {
 	rest, ok := strings.CutPrefix(s, SecretPrefix)
 	if !ok {
-		return nil, invalid("/secret", fmt.Sprintf("must start with %q", SecretPrefix))
+		return nil, field.Invalid("/secret", "must start with %q", SecretPrefix)
 	}
 	key, err := base64.StdEncoding.DecodeString(rest)
 	if err != nil {
-		return nil, invalid("/secret", fmt.Sprintf("must be %q followed by standard base64", SecretPrefix))
+		return nil, field.Invalid("/secret", "must be %q followed by standard base64", SecretPrefix)
 	}
 	if len(key) < MinSecretBytes || len(key) > MaxSecretBytes {
-		return nil, invalid("/secret", fmt.Sprintf("must encode %d to %d bytes, not %d", MinSecretBytes, MaxSecretBytes, len(key)))
+		return nil, field.Invalid("/secret", "must encode %d to %d bytes, not %d", MinSecretBytes, MaxSecretBytes, len(key))
 	}
 	return key, nil
 }

@@ -9,6 +9,8 @@ import (
 	"strings"
 	"testing"
 	"time"
+
+	"wheelbench/service/field"
 )
 
 // readVector reads testdata/reference/standard_webhooks_vector.txt: "key: value"
@@ -200,9 +202,9 @@ func TestParseSecretRejects(t *testing.T) {
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
 			_, err := ParseSecret(tt.in)
-			var fe *FieldError
-			if !errors.As(err, &fe) || fe.FieldPointer() != "/secret" || fe.IsUnprocessable() {
-				t.Errorf("ParseSecret(%q) = %v, want a 400-class FieldError at /secret", tt.in, err)
+			var fe *field.Error
+			if !errors.As(err, &fe) || fe.Pointer != "/secret" || fe.Unprocessable {
+				t.Errorf("ParseSecret(%q) = %v, want a 400-class field error at /secret", tt.in, err)
 			}
 		})
 	}

@@ -37,7 +37,36 @@ CREATE TABLE api_keys (
 
 CREATE INDEX api_keys_org ON api_keys (org_id, id);
 
+-- Organisations and locations are never deleted and never change their
+-- ids: the API has no way to, and these triggers make it hold in the
+-- database too, also for a tenant no row names yet (which a foreign key
+-- alone would let go). A row that once named one goes on naming it.
+-- (Deliberately removing a tenant is an operator's job: disable the
+-- triggers in that transaction.)
+-- +goose StatementBegin
+CREATE FUNCTION refuse_tenant_removal() RETURNS trigger LANGUAGE plpgsql AS $$
+BEGIN
+  RAISE EXCEPTION '% rows are never deleted and keep their ids', TG_TABLE_NAME
+    USING ERRCODE = 'restrict_violation';
+END
+$$;
+-- +goose StatementEnd
+CREATE TRIGGER organisations_kept BEFORE DELETE OR TRUNCATE ON organisations
+  FOR EACH STATEMENT EXECUTE FUNCTION refuse_tenant_removal();
+CREATE TRIGGER organisations_id_kept BEFORE UPDATE OF id ON organisations
+  FOR EACH ROW WHEN (OLD.id IS DISTINCT FROM NEW.id) EXECUTE FUNCTION refuse_tenant_removal();
+CREATE TRIGGER locations_kept BEFORE DELETE OR TRUNCATE ON locations
+  FOR EACH STATEMENT EXECUTE FUNCTION refuse_tenant_removal();
+CREATE TRIGGER locations_id_kept BEFORE UPDATE OF id, org_id ON locations
+  FOR EACH ROW WHEN (OLD.id IS DISTINCT FROM NEW.id OR OLD.org_id IS DISTINCT FROM NEW.org_id)
+  EXECUTE FUNCTION refuse_tenant_removal();
+
 -- +goose Down
+DROP TRIGGER locations_id_kept ON locations;
+DROP TRIGGER locations_kept ON locations;
+DROP TRIGGER organisations_id_kept ON organisations;
+DROP TRIGGER organisations_kept ON organisations;
+DROP FUNCTION refuse_tenant_removal();
 DROP TABLE api_keys;
 DROP TABLE locations;
 DROP TABLE organisations;

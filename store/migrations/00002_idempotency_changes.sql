@@ -17,7 +17,9 @@ CREATE INDEX idempotency_keys_expiry ON idempotency_keys (expires_at);
 
 -- The change feed. Each row carries the id of the transaction that wrote it;
 -- readers are served only rows below the current snapshot's xmin, where no
--- transaction can still commit, in (txid, seq) order.
+-- transaction can still commit, in (txid, seq) order. Its payload is
+-- written once and read back whole, never queried inside: json (checked,
+-- stored as sent) rather than jsonb (parsed into a tree on every insert).
 CREATE TABLE changes (
     org_id      uuid NOT NULL REFERENCES organisations (id),
     txid        xid8 NOT NULL DEFAULT pg_current_xact_id(),
@@ -26,7 +28,7 @@ CREATE TABLE changes (
     resource_id uuid NOT NULL,
     location_id uuid,
     occurred_at timestamptz NOT NULL DEFAULT now(),
-    data        jsonb NOT NULL,
+    data        json NOT NULL,
     PRIMARY KEY (org_id, txid, seq)
 );
 CREATE INDEX changes_age ON changes (occurred_at);

@@ -7,7 +7,7 @@
 # SSLMODE=disable runs both sides without TLS on loopback (default: prefer).
 # CONNS sets both sides' concurrency; the service inherits GOGC and
 # GOMAXPROCS (GOMAXPROCS=1 leaves PostgreSQL a core on a 2-vCPU host).
-# FK_ALTERNATE=1 measures the tenant foreign keys of migration 00010
+# FK_ALTERNATE=1 measures the tenant foreign keys (migrations 00002, 00004)
 # (builds → locations, changes → organisations): even rounds run without
 # them (dropped before the round, added back NOT VALID after it, which
 # PostgreSQL still enforces on every new row), odd rounds with them, so the

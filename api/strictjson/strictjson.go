@@ -1,8 +1,9 @@
 // Package strictjson is wheelbench's one policy for reading JSON that comes
-// from outside: request bodies in api/ and the documents nested in them
-// (a build's spec, a part's dimensions) in service/. It decodes with the
+// from outside: every request body the HTTP layer reads, the documents
+// nested in them (a build's spec, a part's dimensions) and the batch
+// wheels the hot codec (api/spokejson) steps aside on. It decodes with the
 // semantics of encoding/json/v2 (github.com/go-json-experiment/json) and
-// refuses, with the RFC 6901 pointer of the offending value:
+// refuses, with the library's RFC 6901 pointer of the offending value:
 //
 //   - member names in another letter case, unknown members and duplicate
 //     names;
@@ -13,8 +14,11 @@
 //   - anything after the one JSON value;
 //   - nesting deeper than 10000 arrays and objects (the library's bound).
 //
-// Its errors are *Error values: a pointer and a message written for the
-// integrator, never a Go type name. It imports only the JSON library.
+// Its errors are *field.Error values (400): the library's pointer and a
+// message written for the integrator, never a Go type name. What went wrong
+// is told from the library's error values and the input at the error's
+// offset, never from the wording of an error. It imports only the JSON
+// library and the field-error type.
 package strictjson
 
 import (
@@ -27,28 +31,13 @@ import (
 	"reflect"
 	"strconv"
 	"strings"
+	"unicode/utf8"
 
 	"github.com/go-json-experiment/json"
 	"github.com/go-json-experiment/json/jsontext"
+
+	"wheelbench/service/field"
 )
-
-// Error is one refused value: Pointer is an RFC 6901 pointer into the
-// document ("" for the document itself), Message says what is wrong.
-type Error struct {
-	Pointer string
-	Message string
-}
-
-func (e *Error) Error() string { return e.Pointer + ": " + e.Message }
-
-// FieldPointer returns the JSON pointer of the refused value.
-func (e *Error) FieldPointer() string { return e.Pointer }
-
-// FieldMessage returns the message without the pointer.
-func (e *Error) FieldMessage() string { return e.Message }
-
-// IsUnprocessable is false: a document the policy refuses is malformed (400).
-func (e *Error) IsUnprocessable() bool { return false }
 
 // Nullable is implemented by the few types that give JSON null a meaning
 // (a PATCH member whose null removes a value). Every other type refuses null.
@@ -78,9 +67,14 @@ var options = json.JoinOptions(json.RejectUnknownMembers(true), refuseNull)
 // be a non-nil pointer. On error v may be partly filled.
 func Unmarshal(b []byte, v any) error {
 	if err := json.Unmarshal(b, v, options); err != nil {
-		return translate(err)
+		return translate(b, err)
 	}
-	return checkNUL(b)
+	// The escape \u0000 is the only way to write U+0000 (a raw NUL byte is
+	// not valid JSON): a body without that text holds none.
+	if bytes.Contains(b, []byte(`\u0000`)) {
+		return Check(b)
+	}
+	return nil
 }
 
 // Check reads b as one JSON value under the policy's rules that need no Go
@@ -91,16 +85,16 @@ func Check(b []byte) error {
 	for {
 		tok, err := dec.ReadToken()
 		if err != nil {
-			return translate(err)
+			return translate(b, err)
 		}
 		switch tok.Kind() {
 		case '0':
 			if f, err := tok.Float(); err != nil || math.IsInf(f, 0) {
-				return &Error{Pointer: string(dec.StackPointer()), Message: outOfRangeFloat}
+				return &field.Error{Pointer: string(dec.StackPointer()), Message: outOfRangeFloat}
 			}
 		case '"':
 			if strings.IndexByte(tok.String(), 0) >= 0 {
-				return &Error{Pointer: string(dec.StackPointer()), Message: nulMessage}
+				return &field.Error{Pointer: string(dec.StackPointer()), Message: nulMessage}
 			}
 		}
 		if dec.StackDepth() == 0 {
@@ -108,9 +102,9 @@ func Check(b []byte) error {
 		}
 	}
 	if _, err := dec.ReadToken(); err == nil {
-		return &Error{Message: "the body has data after its JSON value"}
+		return &field.Error{Message: "the body has data after its JSON value"}
 	} else if !errors.Is(err, io.EOF) {
-		return translate(err)
+		return translate(b, err)
 	}
 	return nil
 }
@@ -120,87 +114,112 @@ const (
 	outOfRangeFloat = "must be a number within the range of a double (about ±1.8e308)"
 )
 
-// checkNUL finds a U+0000 in any string or member name of b, which is
-// valid JSON. The escape \u0000 is the only way to write one (a raw NUL
-// byte is not valid JSON), so a body without that text is passed at once.
-func checkNUL(b []byte) error {
-	if !bytes.Contains(b, []byte(`\u0000`)) {
-		return nil
-	}
-	dec := jsontext.NewDecoder(bytes.NewReader(b))
-	for {
-		tok, err := dec.ReadToken()
-		if err != nil {
-			return nil // already decoded once: only the end is left
-		}
-		if tok.Kind() == '"' && strings.IndexByte(tok.String(), 0) >= 0 {
-			return &Error{Pointer: string(dec.StackPointer()), Message: nulMessage}
-		}
-	}
-}
-
-// translate turns the JSON library's errors into *Error. An error that
-// is not the library's (one a type's own decoder returned) keeps its
-// pointer and text when it already has a pointer of its own.
-func translate(err error) error {
+// translate turns the JSON library's errors about b into *field.Error. An
+// error that is not the library's (one a type's own decoder returned) keeps
+// its pointer and text when it already has a pointer of its own.
+func translate(b []byte, err error) error {
 	var sem *json.SemanticError
 	if errors.As(err, &sem) {
 		return semantic(sem)
 	}
-	var fe *Error
+	var fe *field.Error
 	if errors.As(err, &fe) {
 		return fe
 	}
 	var syn *jsontext.SyntacticError
 	if errors.As(err, &syn) {
-		ptr := string(syn.JSONPointer)
+		ptr, at := string(syn.JSONPointer), syn.ByteOffset
 		switch {
 		case errors.Is(syn.Err, jsontext.ErrDuplicateName):
-			return &Error{Pointer: ptr, Message: "duplicate member name"}
-		case syn.Err != nil && strings.Contains(syn.Err.Error(), "UTF-8"):
-			return &Error{Pointer: ptr, Message: "is not valid UTF-8"}
+			return &field.Error{Pointer: ptr, Message: "duplicate member name"}
 		case errors.Is(syn.Err, io.ErrUnexpectedEOF):
-			return &Error{Message: "the body is empty or cut short"}
-		case syn.Err != nil && strings.Contains(syn.Err.Error(), "after top-level value"):
-			return &Error{Message: "the body has data after its JSON value"}
-		case syn.Err != nil && strings.Contains(syn.Err.Error(), "exceeded max depth"):
-			// The library's bound; its pointer would be 10,000 segments long.
-			return &Error{Message: "the body nests arrays and objects more than 10000 deep"}
+			return &field.Error{Message: "the body is empty or cut short"}
+		case afterValue(b, at):
+			return &field.Error{Message: "the body has data after its JSON value"}
+		case invalidUTF8At(b, at):
+			return &field.Error{Pointer: ptr, Message: "is not valid UTF-8"}
+		case nestedTooDeep(b, syn):
+			// Its pointer would be 10,000 segments long.
+			return &field.Error{Message: "the body nests arrays and objects more than 10000 deep"}
 		}
-		return &Error{Pointer: ptr, Message: fmt.Sprintf("is not valid JSON (at byte %d)", syn.ByteOffset)}
+		return &field.Error{Pointer: ptr, Message: fmt.Sprintf("is not valid JSON (at byte %d)", at)}
 	}
 	if errors.Is(err, io.EOF) || errors.Is(err, io.ErrUnexpectedEOF) {
-		return &Error{Message: "the body is empty or cut short"}
+		return &field.Error{Message: "the body is empty or cut short"}
 	}
-	return &Error{Message: "the body could not be read"}
+	return &field.Error{Message: "the body could not be read"}
+}
+
+// invalidUTF8At reports whether the library stopped inside a string (a
+// member name or a value) at a byte that starts no valid UTF-8 sequence.
+// Outside strings such a byte is just a character JSON does not have.
+func invalidUTF8At(b []byte, at int64) bool {
+	if at < 0 || at >= int64(len(b)) {
+		return false
+	}
+	if r, size := utf8.DecodeRune(b[at:]); r != utf8.RuneError || size > 1 {
+		return false
+	}
+	in := false // inside a string, scanning from the start
+	for i := int64(0); i < at; i++ {
+		switch {
+		case b[i] == '"':
+			in = !in
+		case b[i] == '\\' && in:
+			i++
+		}
+	}
+	return in
+}
+
+// maxDepth is the library's bound on nesting.
+const maxDepth = 10000
+
+// nestedTooDeep reports whether the error is the library refusing to open
+// an array or object past maxDepth: it stops at that bracket, with a
+// pointer maxDepth segments long.
+func nestedTooDeep(b []byte, syn *jsontext.SyntacticError) bool {
+	at := syn.ByteOffset
+	if at < 0 || at >= int64(len(b)) || b[at] != '[' && b[at] != '{' {
+		return false
+	}
+	n := 0
+	for range syn.JSONPointer.Tokens() {
+		n++
+	}
+	return n >= maxDepth
+}
+
+// afterValue reports whether the error lies past b's first JSON value,
+// which reads whole: data after the value.
+func afterValue(b []byte, at int64) bool {
+	dec := jsontext.NewDecoder(bytes.NewReader(b))
+	return dec.SkipValue() == nil && dec.InputOffset() <= at
 }
 
 func semantic(e *json.SemanticError) error {
 	ptr := string(e.JSONPointer)
-	var inner *Error
+	var inner *field.Error
 	switch {
 	case errors.As(e.Err, &inner):
 		// A type's own decoder used this package: its pointer is relative
 		// to the value it was given.
-		return &Error{Pointer: ptr + inner.Pointer, Message: inner.Message}
+		return &field.Error{Pointer: ptr + inner.Pointer, Message: inner.Message}
 	case errors.Is(e.Err, json.ErrUnknownName):
-		return &Error{Pointer: ptr, Message: "unknown member (names are exact and case-sensitive)"}
+		return &field.Error{Pointer: ptr, Message: "unknown member (names are exact and case-sensitive)"}
 	case errors.Is(e.Err, errNull):
-		return &Error{Pointer: ptr, Message: "must not be null"}
+		return &field.Error{Pointer: ptr, Message: "must not be null"}
 	}
 	want := wantOf(e.GoType)
 	switch {
 	case e.JSONKind != 0 && e.Err == nil:
-		return &Error{Pointer: ptr, Message: fmt.Sprintf("must be %s, not %s", want, kindName(e.JSONKind))}
-	case errors.Is(e.Err, strconv.ErrRange) || (e.Err != nil && strings.Contains(e.Err.Error(), "out of range")):
-		if isFloat(e.GoType) {
-			return &Error{Pointer: ptr, Message: outOfRangeFloat}
-		}
-		return &Error{Pointer: ptr, Message: fmt.Sprintf("must be %s within range", want)}
-	case errors.Is(e.Err, strconv.ErrSyntax) || (e.Err != nil && strings.Contains(e.Err.Error(), "invalid syntax")):
-		return &Error{Pointer: ptr, Message: "must be " + want}
+		return &field.Error{Pointer: ptr, Message: fmt.Sprintf("must be %s, not %s", want, kindName(e.JSONKind))}
+	case errors.Is(e.Err, strconv.ErrRange) && isFloat(e.GoType):
+		return &field.Error{Pointer: ptr, Message: outOfRangeFloat}
+	case errors.Is(e.Err, strconv.ErrRange):
+		return &field.Error{Pointer: ptr, Message: fmt.Sprintf("must be %s within range", want)}
 	}
-	return &Error{Pointer: ptr, Message: "must be " + want}
+	return &field.Error{Pointer: ptr, Message: "must be " + want}
 }
 
 func isFloat(t reflect.Type) bool {

@@ -3,41 +3,30 @@ package tension
 import (
 	"errors"
 
+	"wheelbench/service/field"
 	"wheelbench/service/spoke"
 )
 
 // maxReadings bounds one conversion request.
 const maxReadings = 1000
 
-// ConversionRequest is the body of a conversion: a calibration (by id,
-// which the caller resolves to a stored Model, or inline), the spoke (the
-// same description as everywhere; its measured section is converted), and
-// either readings or exactly one target tension in N, kgf or lbf.
+// ConversionRequest is what one conversion against a fitted model asks: the
+// spoke (the same description as everywhere; its measured section is
+// converted), and either readings or exactly one target tension in N, kgf
+// or lbf. The calibration it converts with is the caller's to find (the
+// request body names it beside these members).
 type ConversionRequest struct {
-	// CalibrationID is resolved by the caller; this package ignores it.
-	CalibrationID    string       `json:"calibration_id,omitempty"`
-	Calibration      *Calibration `json:"calibration,omitempty"`
-	Spoke            spoke.Spec   `json:"spoke"`
-	Readings         []float64    `json:"readings,omitempty"`
-	TargetTensionN   *float64     `json:"target_tension_n,omitempty"`
-	TargetTensionKgf *float64     `json:"target_tension_kgf,omitempty"`
-	TargetTensionLbf *float64     `json:"target_tension_lbf,omitempty"`
+	Spoke            spoke.Spec `json:"spoke"`
+	Readings         []float64  `json:"readings"`
+	TargetTensionN   *float64   `json:"target_tension_n"`
+	TargetTensionKgf *float64   `json:"target_tension_kgf"`
+	TargetTensionLbf *float64   `json:"target_tension_lbf"`
 }
 
 // ConversionResponse carries results for readings, or the target.
 type ConversionResponse struct {
 	Results []Result `json:"results,omitempty"`
 	Target  *Target  `json:"target,omitempty"`
-}
-
-// FitInline fits the request's inline calibration (tool facts as given),
-// with error pointers under "/calibration".
-func (req ConversionRequest) FitInline(tool Tool) (*Model, error) {
-	if req.Calibration == nil {
-		return nil, badField("/calibration", "give calibration_id or an inline calibration")
-	}
-	m, err := Fit(*req.Calibration, tool)
-	return m, WithPointerPrefix(err, "/calibration")
 }
 
 // ConvertRequest answers a conversion request against a fitted model. Pointers
@@ -60,13 +49,13 @@ func (m *Model) ConvertRequest(req ConversionRequest) (ConversionResponse, error
 	}
 	switch {
 	case len(targets) > 1:
-		return ConversionResponse{}, badField(targets[1].at, "give one target tension only (N, kgf or lbf)")
+		return ConversionResponse{}, field.Invalid(targets[1].at, "give one target tension only (N, kgf or lbf)")
 	case len(targets) == 1 && len(req.Readings) > 0:
-		return ConversionResponse{}, badField("/readings", "give readings or a target tension, not both")
+		return ConversionResponse{}, field.Invalid("/readings", "give readings or a target tension, not both")
 	case len(targets) == 0 && len(req.Readings) == 0:
-		return ConversionResponse{}, badField("/readings", "give readings or a target tension")
+		return ConversionResponse{}, field.Invalid("/readings", "give readings or a target tension")
 	case len(req.Readings) > maxReadings:
-		return ConversionResponse{}, badField("/readings", "at most %d readings per request", maxReadings)
+		return ConversionResponse{}, field.Invalid("/readings", "at most %d readings per request", maxReadings)
 	}
 	p, err := m.prepareSpoke(req.Spoke, "/spoke")
 	if err != nil {

@@ -1,23 +1,33 @@
-package api
+package spokejson
 
 import (
 	"encoding/binary"
 	"math/bits"
 	"strconv"
 
+	"wheelbench/api/strictjson"
 	"wheelbench/service/geometry"
 	"wheelbench/service/spoke"
 )
 
-// A fast path for decoding batch wheels. A general decoder spends about
-// 15 µs on one wheel (reflection, a validity pre-scan, pointer fields);
-// 10,000 of them would eat the batch's whole time budget. wheelParser
-// decodes the plain, common form of a wheel — exact lower-case member
-// names, no duplicates, no null, no escapes or non-ASCII in strings — by
-// hand and gives up (ok = false) on anything else, which then goes through
-// decodeBytes, the strict decoder every route uses (package strictjson).
-// So the fast path never decides an error: it either yields the Wheel the
-// strict decoder would, or steps aside. FuzzWheelParser checks that.
+// DecodeWheel decodes one wheel body into w under the strict policy: by the
+// fast path when it takes the body, else by strictjson, whose errors
+// (*field.Error) it returns.
+func DecodeWheel(b []byte, w *geometry.Wheel) error {
+	if parseWheel(b, w, nil) {
+		return nil
+	}
+	*w = geometry.Wheel{}
+	return strictjson.Unmarshal(b, w)
+}
+
+// The fast path. wheelParser decodes the plain, common form of a wheel —
+// exact lower-case member names, no duplicates, no null, no escapes or
+// non-ASCII in strings — by hand and gives up (ok = false) on anything
+// else, which then goes through strictjson, the strict decoder every
+// route uses. So the fast path never decides an error: it either yields
+// the Wheel the strict decoder would, or steps aside. FuzzWheelParser
+// checks that.
 
 type wheelParser struct {
 	b   []byte

@@ -1,4 +1,4 @@
-package api
+package spokejson
 
 import (
 	"encoding/json"
@@ -12,11 +12,11 @@ import (
 
 	"github.com/go-json-experiment/json/jsontext"
 
-	"wheelbench/service"
+	"wheelbench/api/strictjson"
+	"wheelbench/service/field"
 	"wheelbench/service/fit"
 	"wheelbench/service/geometry"
 	"wheelbench/service/spoke"
-	"wheelbench/strictjson"
 )
 
 // wheelSeeds are bodies the fast path must agree on with the strict decoder:
@@ -66,14 +66,49 @@ const sharedMembersSeed = `{"spoke_count":32,"include_lacing":true,"hub":{"holes
 	`"rim":{"erd_mm":599},"crosses":{"left":3,"right":3},"spoke":{"profile":"round","diameter_mm":2,"measured_section":"section_1",` +
 	`"sections":[{"length_mm":200,"profile":"round","diameter_mm":1.8}],"width_mm":2.3,"thickness_mm":1.2}}`
 
+// maxWheels is the batch limit of the tests (the service's is the same).
+const maxWheels = 10000
+
+// compute is the service's spoke-length use case (fit.ComputeWheel with
+// the default options), for the tests.
+func compute(w geometry.Wheel) (fit.WheelResult, error) {
+	return fit.ComputeWheel(w, fit.DefaultOptions())
+}
+
+// testProblem writes a failed wheel's slot as the tests read it: its index
+// and, per field error, the pointer under /wheels/i, the kind and the
+// message; a fault shows as such.
+func testProblem(b []byte, err error, i int) ([]byte, error) {
+	type fe struct {
+		Pointer       string `json:"pointer"`
+		Message       string `json:"message"`
+		Unprocessable bool   `json:"unprocessable"`
+	}
+	slot := struct {
+		Wheel  int  `json:"wheel"`
+		Fault  bool `json:"fault,omitempty"`
+		Errors []fe `json:"errors"`
+	}{Wheel: i}
+	for _, e := range field.All(err) {
+		slot.Errors = append(slot.Errors, fe{"/wheels/" + strconv.Itoa(i) + e.Pointer, e.Message, e.Unprocessable})
+	}
+	slot.Fault = len(slot.Errors) == 0
+	j, jerr := json.Marshal(slot)
+	return append(b, j...), jerr
+}
+
+func testBatch() Batch {
+	return Batch{Compute: compute, Problem: testProblem, MaxWheels: maxWheels}
+}
+
 // agree fails unless the fast path either declines or decodes exactly what
-// the strict decoder (decodeBytes, package strictjson) decodes.
+// the strict decoder (strictjson.Unmarshal) decodes.
 func agree(t *testing.T, body []byte) {
 	var fast, slow geometry.Wheel
 	if !parseWheel(body, &fast, &arena{}) {
 		return
 	}
-	if err := decodeBytes(body, &slow); err != nil {
+	if err := strictjson.Unmarshal(body, &slow); err != nil {
 		t.Fatalf("fast path took %q, the strict decoder refuses it: %v", body, err)
 	}
 	if !reflect.DeepEqual(fast, slow) {
@@ -124,7 +159,7 @@ func TestSplitWheels(t *testing.T) {
 			continue
 		}
 		var env batchRequest
-		if err := decodeBytes([]byte(b), &env); err != nil {
+		if err := strictjson.Unmarshal([]byte(b), &env); err != nil {
 			t.Errorf("split %q, the strict decoder refuses it: %v", b, err)
 			continue
 		}
@@ -148,12 +183,12 @@ func TestAppendResultMatches(t *testing.T) {
 	rng := rand.New(rand.NewPCG(1, 2))
 	fp := func(v float64) *float64 { return &v }
 	ip := func(v int) *int { return &v }
-	check := func(r service.SpokeLengthResult) {
+	check := func(r fit.WheelResult) {
 		want, err := json.Marshal(r)
 		if err != nil {
 			t.Fatal(err)
 		}
-		got, err := appendResult(nil, &r)
+		got, err := AppendResult(nil, &r)
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -193,7 +228,7 @@ func TestAppendResultMatches(t *testing.T) {
 		if rng.IntN(2) == 0 {
 			w.Stock = &geometry.Stock{IncrementMM: fp(1 + float64(rng.IntN(3)))}
 		}
-		r, err := testService().SpokeLengths(w)
+		r, err := compute(w)
 		if err != nil {
 			continue
 		}
@@ -203,7 +238,7 @@ func TestAppendResultMatches(t *testing.T) {
 	if results < 1000 {
 		t.Fatalf("only %d random wheels computed; the generator is off", results)
 	}
-	edge := service.SpokeLengthResult{Result: geometry.Result{
+	edge := fit.WheelResult{Result: geometry.Result{
 		Left: geometry.SideResult{LengthMM: 1e21, BracingAngleDeg: 1e-7, HubAngleDeg: math.Copysign(0, -1), TensionN: fp(5e-324),
 			ExitAngleDeg: fp(1e-7), LengthGroups: []geometry.LengthGroup{{LengthMM: 1, Count: 2, SpokeEndMM: fp(-0.5)}, {LengthMM: 2e-7, Count: 1}}},
 		Right:                   geometry.SideResult{LengthMM: 123456789.125, SpokeEndMM: fp(-1e-6), OrderLengthMM: fp(9.999999999999999e20)},
@@ -216,7 +251,7 @@ func TestAppendResultMatches(t *testing.T) {
 		Cautions: []string{"plain", "ünïcode", "tab\there"},
 	}
 	check(edge)
-	check(service.SpokeLengthResult{})
+	check(fit.WheelResult{})
 }
 
 // splitWheels is the batch's splitter in one serial pass, as the handler
@@ -264,13 +299,13 @@ func splitWheels(b []byte) (items [][]byte, ok bool) {
 // cut the body into parts, step by step and serially: split the envelope
 // (or let the strict decoder do it), check the count, decode every wheel
 // (fast path, else the strict decoder), refuse the body at its first wheel
-// that is not JSON (saying where by the JSON policy), compute all, encode
-// the slots in order.
-func referenceBatch(s *Server, body []byte, instance string) ([]byte, error) {
+// that is not JSON (saying where by the JSON policy), compute each wheel in
+// order, encode the slots in order.
+func referenceBatch(bt Batch, body []byte) ([]byte, error) {
 	raws, ok := splitWheels(body)
 	if !ok {
 		var req batchRequest
-		if err := decodeBytes(body, &req); err != nil {
+		if err := strictjson.Unmarshal(body, &req); err != nil {
 			return nil, err
 		}
 		raws = nil
@@ -278,9 +313,8 @@ func referenceBatch(s *Server, body []byte, instance string) ([]byte, error) {
 			raws = append(raws, r)
 		}
 	}
-	if len(raws) == 0 || len(raws) > service.MaxBatchWheels {
-		return nil, &validationError{status: 400, detail: "The body does not match the API description: see errors.",
-			fields: []FieldProblem{{Pointer: "/wheels", Message: "must hold 1 to " + strconv.Itoa(service.MaxBatchWheels) + " wheels"}}}
+	if len(raws) == 0 || len(raws) > bt.MaxWheels {
+		return nil, field.Invalid("/wheels", "must hold 1 to %d wheels", bt.MaxWheels)
 	}
 	wheels := make([]geometry.Wheel, len(raws))
 	decodeErr := make([]error, len(raws))
@@ -292,13 +326,11 @@ func referenceBatch(s *Server, body []byte, instance string) ([]byte, error) {
 			if err := strictjson.Check(body); err != nil {
 				return nil, err
 			}
-			return nil, &validationError{status: 400, detail: "The body could not be read: see errors.",
-				fields: []FieldProblem{{Pointer: "/wheels/" + strconv.Itoa(i), Message: "is not valid JSON"}}}
+			return nil, field.Invalid("/wheels/"+strconv.Itoa(i), "is not valid JSON")
 		}
 		wheels[i] = geometry.Wheel{}
-		decodeErr[i] = decodeBytes(raw, &wheels[i])
+		decodeErr[i] = strictjson.Unmarshal(raw, &wheels[i])
 	}
-	items := s.svc.SpokeLengthsBatch(wheels)
 	b := []byte(`{"results":[`)
 	good := 0
 	for i := range raws {
@@ -306,20 +338,18 @@ func referenceBatch(s *Server, body []byte, instance string) ([]byte, error) {
 			b = append(b, ',')
 		}
 		err := decodeErr[i]
+		var res fit.WheelResult
 		if err == nil {
-			err = items[i].Err
+			res, err = bt.Compute(wheels[i])
 		}
 		if err != nil {
-			j, err := json.Marshal(slotProblem(err, i, instance))
-			if err != nil {
+			if b, err = bt.Problem(b, err, i); err != nil {
 				return nil, err
 			}
-			b = append(b, j...)
 			continue
 		}
-		var err2 error
-		if b, err2 = appendResult(b, &items[i].Result); err2 != nil {
-			return nil, err2
+		if b, err = AppendResult(b, &res); err != nil {
+			return nil, err
 		}
 		good++
 	}
@@ -346,8 +376,7 @@ var batchElements = append([]string{
 // the same refusal), over random batches of the elements above and over
 // malformed bodies.
 func TestBatchAnswerAgrees(t *testing.T) {
-	s := &Server{svc: service.New(nil, nil)}
-	const instance = "/v1/spoke-lengths/batch"
+	bt := testBatch()
 	rng := rand.New(rand.NewPCG(3, 4))
 	seps := []string{",", ", ", " ,\n", "\t,\r\n "}
 	var bodies []string
@@ -369,8 +398,8 @@ func TestBatchAnswerAgrees(t *testing.T) {
 		`{"wheels": [{}, {"spoke_count": 32,,}, {}]}`, `{"wheels": [{},{},]}`, `{"wheels": [,{}]}`,
 		`{"wheels": []}`, `{"wheels": [{}]} x`, `{"wheels": [{}], "x": 1}`, `{"Wheels": [{}, {}]}`,
 		`{"wheels": [{}, {}], "wheels": [{}]}`, `{"wheels": [{}}`, `{"wheels": [{} {}]}`,
-		`{"wheels": [`+strings.Repeat(`{},`, service.MaxBatchWheels)+`{}]}`,
-		`{"wheels": [`+strings.Repeat(`{},`, service.MaxBatchWheels-1)+`{}]}`,
+		`{"wheels": [`+strings.Repeat(`{},`, maxWheels)+`{}]}`,
+		`{"wheels": [`+strings.Repeat(`{},`, maxWheels-1)+`{}]}`,
 		`{"wheels": [`+strings.Repeat(`{},`, 20)+`{"a":1,,}, 7]}`,
 	)
 	// A body whose middle is inside one wheel's butted sections: the guessed
@@ -380,19 +409,19 @@ func TestBatchAnswerAgrees(t *testing.T) {
 	bodies = append(bodies, inside)
 	answer := func(out []byte, err error) string {
 		if err != nil {
-			p, internal := toProblem(err)
-			j, _ := json.Marshal(p)
-			return fmt.Sprintf("refused (internal %v): %s", internal, j)
+			return fmt.Sprintf("refused: %T %v", err, err)
 		}
 		return string(out)
 	}
 	for _, body := range bodies {
-		want := answer(referenceBatch(s, []byte(body), instance))
+		want := answer(referenceBatch(bt, []byte(body)))
 		for _, cpus := range []int{1, 2, 3, 7} {
 			for _, minPart := range []int{1, 40, minCutPart} {
-				out, err := s.batchAnswer([]byte(body), instance, cpus, minPart)
+				cut := bt
+				cut.CPUs, cut.MinPart = cpus, minPart
+				out, err := cut.Answer([]byte(body))
 				got := answer(out, err)
-				putBuf(answerPool, out)
+				PutAnswer(out)
 				if got != want {
 					t.Fatalf("%d parts of at least %d bytes, body %.300q:\n got %.500s\nwant %.500s", cpus, minPart, body, got, want)
 				}
@@ -400,7 +429,7 @@ func TestBatchAnswerAgrees(t *testing.T) {
 		}
 	}
 	// The plain body really is shared out, and the parts' guessed cuts hold.
-	parts, ok := s.batchFromBody([]byte(plain), instance, 3, 1)
+	parts, ok := bt.fromBody([]byte(plain), 3, 1)
 	if !ok || len(parts) != 3 {
 		t.Fatalf("the plain body went into %d parts (ok %v), want 3", len(parts), ok)
 	}
@@ -409,7 +438,7 @@ func TestBatchAnswerAgrees(t *testing.T) {
 	if cuts := cutWheels([]byte(inside), from, 2, 1); len(cuts) != 1 || !strings.HasPrefix(inside[cuts[0]:], `{"length_mm"`) {
 		t.Fatalf("cuts %v of the body with sections do not fall inside the sections", cuts)
 	}
-	if parts, ok := s.batchFromBody([]byte(inside), instance, 2, 1); !ok || len(parts) != 1 || parts[0].n != 3 {
+	if parts, ok := bt.fromBody([]byte(inside), 2, 1); !ok || len(parts) != 1 || parts[0].n != 3 {
 		t.Fatalf("the body with sections went into %d parts (ok %v), want 1 of 3 wheels", len(parts), ok)
 	}
 }

@@ -1,4 +1,4 @@
-package api
+package background
 
 import (
 	"bytes"
@@ -14,6 +14,7 @@ import (
 	"testing"
 	"time"
 
+	"wheelbench/service/field"
 	"wheelbench/service/webhook"
 )
 
@@ -22,7 +23,7 @@ import (
 // Control after webhook.CheckAddr, before connect, and refuses (and fails
 // the test) for any non-loopback address, so a bug in CheckAddr can never
 // make a test connect elsewhere.
-func guard(t *testing.T, s *WebhookSender) *atomic.Int64 {
+func guard(t *testing.T, s *HTTPSender) *atomic.Int64 {
 	t.Helper()
 	var calls atomic.Int64
 	s.afterCheck = func(ap netip.AddrPort) error {
@@ -83,7 +84,7 @@ func TestWebhookSenderDeliversWhenPrivateAllowed(t *testing.T) {
 			webhook.HeaderSetFrom(r.Header.Get), b}
 		w.WriteHeader(http.StatusNoContent)
 	}))
-	s := NewWebhookSender(true, 5*time.Second)
+	s := NewHTTPSender(true, 5*time.Second)
 	calls := guard(t, s)
 	status, err := s.Send(context.Background(), srv.URL+"/hooks/in", h, body)
 	if err != nil || status != http.StatusNoContent {
@@ -112,7 +113,7 @@ func TestWebhookSenderRefusesPrivateURLs(t *testing.T) {
 	}))
 	port := netip.MustParseAddrPort(srv.Listener.Addr().String()).Port()
 	p := ":" + strconv.Itoa(int(port))
-	s := NewWebhookSender(false, 2*time.Second)
+	s := NewHTTPSender(false, 2*time.Second)
 	calls := guard(t, s)
 	_, h := signed(t, []byte(`{}`))
 	for _, url := range []string{
@@ -125,9 +126,9 @@ func TestWebhookSenderRefusesPrivateURLs(t *testing.T) {
 		"http://2130706433" + p + "/", // 127.0.0.1 as one number
 	} {
 		status, err := s.Send(context.Background(), url, h, []byte(`{}`))
-		var fe *webhook.FieldError
-		if !errors.As(err, &fe) || fe.FieldPointer() != "/url" || status != 0 {
-			t.Errorf("Send(%s) = %d, %v; want 0 and a FieldError at /url", url, status, err)
+		var fe *field.Error
+		if !errors.As(err, &fe) || fe.Pointer != "/url" || status != 0 {
+			t.Errorf("Send(%s) = %d, %v; want 0 and a field error at /url", url, status, err)
 		}
 	}
 	if n := calls.Load(); n != 0 {
@@ -147,7 +148,7 @@ func TestWebhookSenderDialerRefusesResolvedAddresses(t *testing.T) {
 		t.Errorf("request reached the loopback server: %s", r.URL)
 	}))
 	p := ":" + strconv.Itoa(int(netip.MustParseAddrPort(srv.Listener.Addr().String()).Port()))
-	s := NewWebhookSender(false, 2*time.Second)
+	s := NewHTTPSender(false, 2*time.Second)
 	s.skipURLCheck = true
 	calls := guard(t, s)
 	_, h := signed(t, []byte(`{}`))
@@ -177,7 +178,7 @@ func TestWebhookSenderDialerRefusesResolvedAddresses(t *testing.T) {
 // The Control function itself, without dialling: the addresses a hostile
 // DNS answer could name.
 func TestWebhookSenderControl(t *testing.T) {
-	s := NewWebhookSender(false, 0)
+	s := NewHTTPSender(false, 0)
 	for _, tt := range []struct {
 		network, address string
 		ok               bool
@@ -210,7 +211,7 @@ func TestWebhookSenderDoesNotFollowRedirects(t *testing.T) {
 		targetHits.Add(1)
 	})
 	srv, _ := loopbackServer(t, mux)
-	s := NewWebhookSender(true, 5*time.Second)
+	s := NewHTTPSender(true, 5*time.Second)
 	guard(t, s)
 	_, h := signed(t, []byte(`{}`))
 	status, err := s.Send(context.Background(), srv.URL+"/in", h, []byte(`{}`))
@@ -232,7 +233,7 @@ func TestWebhookSenderTimeout(t *testing.T) {
 	}))
 	t.Cleanup(func() { close(release) }) // runs before srv.Close, so Close does not wait on the handler
 	const timeout = 300 * time.Millisecond
-	s := NewWebhookSender(true, timeout)
+	s := NewHTTPSender(true, timeout)
 	guard(t, s)
 	_, h := signed(t, []byte(`{}`))
 	start := time.Now()
@@ -252,7 +253,7 @@ func TestWebhookSenderDrainsLargeResponse(t *testing.T) {
 	srv, _ := loopbackServer(t, http.HandlerFunc(func(w http.ResponseWriter, r *http.Request) {
 		_, _ = w.Write(big)
 	}))
-	s := NewWebhookSender(true, 5*time.Second)
+	s := NewHTTPSender(true, 5*time.Second)
 	guard(t, s)
 	_, h := signed(t, []byte(`{}`))
 	if status, err := s.Send(context.Background(), srv.URL, h, []byte(`{}`)); err != nil || status != http.StatusOK {
@@ -265,7 +266,7 @@ func TestWebhookSenderDrainsLargeResponse(t *testing.T) {
 }
 
 func TestWebhookSenderConfiguration(t *testing.T) {
-	s := NewWebhookSender(false, 0)
+	s := NewHTTPSender(false, 0)
 	if s.client.Timeout != DefaultWebhookTimeout || DefaultWebhookTimeout != 10*time.Second {
 		t.Errorf("default timeout %v, want 10 s", s.client.Timeout)
 	}

@@ -1,16 +1,11 @@
-package api
+package spokejson
 
 import (
 	"strings"
 	"testing"
 
-	"wheelbench/service"
 	"wheelbench/service/geometry"
 )
-
-// testService computes without a database: the spoke-length methods do
-// not touch the store.
-func testService() *service.Service { return service.New(nil, nil) }
 
 // benchWheel is the contract example of the spoke-length endpoint (as in
 // compute_test.go's contractBody), its whitespace collapsed as in
@@ -37,14 +32,14 @@ func BenchmarkAppendResult(b *testing.B) {
 	if !parseWheel([]byte(benchWheel), &w, nil) {
 		b.Fatal("the fast path declined the contract wheel")
 	}
-	r, err := testService().SpokeLengths(w)
+	r, err := compute(w)
 	if err != nil {
 		b.Fatal(err)
 	}
 	buf := make([]byte, 0, 2048)
 	b.ReportAllocs()
 	for b.Loop() {
-		if buf, err = appendResult(buf[:0], &r); err != nil {
+		if buf, err = AppendResult(buf[:0], &r); err != nil {
 			b.Fatal(err)
 		}
 	}
@@ -55,12 +50,12 @@ func BenchmarkAppendResult(b *testing.B) {
 // without HTTP.
 func BenchmarkScanWheels(b *testing.B) {
 	body := []byte(`{"wheels": [` + strings.TrimSuffix(strings.Repeat(benchWheel+",", 10000), ",") + `]}`)
-	s := &Server{svc: testService()}
+	bt := testBatch()
 	from := len(`{"wheels": [`)
 	b.SetBytes(int64(len(body)))
 	b.ReportAllocs()
 	for b.Loop() {
-		pt := newBatchPart(s, "/v1/spoke-lengths/batch", 0, true, answerSize(len(body)))
+		pt := newBatchPart(&bt, 0, true, answerSize(len(body)))
 		if end := scanWheels(body, from, nil, pt); end != len(body) || pt.good != 10000 {
 			b.Fatalf("scanWheels ended at %d of %d with %d good", end, len(body), pt.good)
 		}

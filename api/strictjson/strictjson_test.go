@@ -8,6 +8,8 @@ import (
 
 	"github.com/go-json-experiment/json/jsontext"
 	"github.com/google/uuid"
+
+	"wheelbench/service/field"
 )
 
 type inner struct {
@@ -71,14 +73,17 @@ func TestUnmarshalRefuses(t *testing.T) {
 		{"cut short", `{"s": "x"`, "", "the body is empty or cut short"},
 		{"empty", ``, "", "the body is empty or cut short"},
 		{"not JSON", `{"s": x}`, "/s", "is not valid JSON (at byte 6)"},
+		{"valid UTF-8 out of place", `{"s": é}`, "/s", "is not valid JSON (at byte 6)"},
+		{"data after the value, no space", `{"s": "x"}{}`, "", "the body has data after its JSON value"},
+		{"bad byte after the value", "{\"s\": \"x\"} \xff", "", "the body has data after its JSON value"},
 		{"nullable's own refusal", `{"opt": "x"}`, "/opt", "must be a number, not a string"},
 	} {
 		t.Run(c.name, func(t *testing.T) {
 			var d doc
 			err := Unmarshal([]byte(c.body), &d)
-			var fe *Error
+			var fe *field.Error
 			if !errors.As(err, &fe) {
-				t.Fatalf("Unmarshal(%q) = %v, want *Error", c.body, err)
+				t.Fatalf("Unmarshal(%q) = %v, want *field.Error", c.body, err)
 			}
 			if fe.Pointer != c.ptr || fe.Message != c.msg {
 				t.Errorf("Unmarshal(%q): pointer %q message %q, want %q %q", c.body, fe.Pointer, fe.Message, c.ptr, c.msg)
@@ -123,9 +128,11 @@ func TestCheck(t *testing.T) {
 		{`[1, 2`, "", "the body is empty or cut short"},
 		{strings.Repeat("[", 10001) + strings.Repeat("]", 10001), "", "the body nests arrays and objects more than 10000 deep"},
 		{strings.Repeat(`{"a":`, 10001) + "1" + strings.Repeat("}", 10001), "", "the body nests arrays and objects more than 10000 deep"},
+		// As deep as allowed, but a bad character inside: not a depth error.
+		{strings.Repeat("[", 10000) + "x" + strings.Repeat("]", 10000), strings.Repeat("/0", 10000), "is not valid JSON (at byte 10000)"},
 	} {
 		err := Check([]byte(c.body))
-		var fe *Error
+		var fe *field.Error
 		if !errors.As(err, &fe) || fe.Pointer != c.ptr || fe.Message != c.msg {
 			t.Errorf("Check(%q) = %v, want %q %q", c.body, err, c.ptr, c.msg)
 		}
@@ -152,9 +159,9 @@ func FuzzCheck(f *testing.F) {
 			t.Fatalf("Check passed %q, which is not valid JSON", b)
 		}
 		if err != nil {
-			var fe *Error
+			var fe *field.Error
 			if !errors.As(err, &fe) {
-				t.Fatalf("Check(%q) = %T %v, want *Error", b, err, err)
+				t.Fatalf("Check(%q) = %T %v, want *field.Error", b, err, err)
 			}
 		}
 		var v any

@@ -1,4 +1,4 @@
-package api
+package background
 
 import (
 	"bytes"
@@ -25,13 +25,15 @@ const webhookUserAgent = "wheelbench-webhooks/1"
 // so the connection can be reused; receivers answer with a status only.
 const webhookDrainLimit = 64 << 10
 
-// WebhookSender POSTs signed webhook messages. It never follows redirects,
+// HTTPSender POSTs signed webhook messages: the outbound HTTP client of the
+// dispatcher (the service's own HTTP layer is api/, for requests coming
+// in). It never follows redirects,
 // ignores proxy settings from the environment, and checks every address it
 // connects to (after DNS resolution, at connect time) with
 // webhook.CheckAddr, so a host name that resolves, or re-resolves, to a
 // private address is refused before any connection is made. Safe for
 // concurrent use.
-type WebhookSender struct {
+type HTTPSender struct {
 	client       *http.Client
 	allowPrivate bool
 	// Test hooks: skipURLCheck lets a test reach the dialer with a URL
@@ -41,14 +43,14 @@ type WebhookSender struct {
 	afterCheck   func(netip.AddrPort) error
 }
 
-// NewWebhookSender returns a sender. allowPrivate lifts the refusal of
+// NewHTTPSender returns a sender. allowPrivate lifts the refusal of
 // loopback, private and link-local destinations (on-premises receivers,
 // tests); timeout <= 0 means DefaultWebhookTimeout.
-func NewWebhookSender(allowPrivate bool, timeout time.Duration) *WebhookSender {
+func NewHTTPSender(allowPrivate bool, timeout time.Duration) *HTTPSender {
 	if timeout <= 0 {
 		timeout = DefaultWebhookTimeout
 	}
-	s := &WebhookSender{allowPrivate: allowPrivate}
+	s := &HTTPSender{allowPrivate: allowPrivate}
 	dialer := &net.Dialer{Timeout: timeout, KeepAlive: 30 * time.Second, Control: s.control}
 	transport := &http.Transport{
 		Proxy:                 nil, // a proxy would make the dialer check the proxy, not the receiver
@@ -73,7 +75,7 @@ func NewWebhookSender(allowPrivate bool, timeout time.Duration) *WebhookSender {
 
 // control runs after DNS resolution, before connect, for every address
 // tried: the one check that holds against DNS rebinding.
-func (s *WebhookSender) control(network, address string, _ syscall.RawConn) error {
+func (s *HTTPSender) control(network, address string, _ syscall.RawConn) error {
 	if network != "tcp4" && network != "tcp6" {
 		return fmt.Errorf("webhook: refusing network %q", network)
 	}
@@ -95,10 +97,10 @@ func (s *WebhookSender) control(network, address string, _ syscall.RawConn) erro
 // response status (a redirect's 3xx included, as redirects are not
 // followed) and a nil error whenever a response arrived; the body is read
 // up to a small limit and discarded. The error is non-nil when no response
-// came: a *webhook.FieldError when url fails webhook.CheckURL, an error
+// came: a *field.Error when url fails webhook.CheckURL, an error
 // wrapping *webhook.AddrError when a resolved address is refused, a
 // timeout, or any other transport failure.
-func (s *WebhookSender) Send(ctx context.Context, url string, h webhook.HeaderSet, body []byte) (int, error) {
+func (s *HTTPSender) Send(ctx context.Context, url string, h webhook.HeaderSet, body []byte) (int, error) {
 	if !s.skipURLCheck {
 		if err := webhook.CheckURL(url, s.allowPrivate); err != nil {
 			return 0, err

@@ -1,9 +1,10 @@
-package service
+package background
 
 import (
 	"context"
 	"errors"
 	"fmt"
+	"log/slog"
 	"strings"
 	"sync"
 	"time"
@@ -13,33 +14,52 @@ import (
 	"wheelbench/service/webhook"
 )
 
-// WebhookSender POSTs one signed delivery. It returns the response status
+// Sender POSTs one signed delivery. It returns the response status
 // whenever a response arrived (err nil), and an error when none did.
-// api.WebhookSender implements it; service never touches HTTP itself.
-type WebhookSender interface {
+// HTTPSender implements it.
+type Sender interface {
 	Send(ctx context.Context, url string, h webhook.HeaderSet, body []byte) (status int, err error)
 }
 
-// DeliveryObserver counts outcomes (metrics). Its methods must be cheap and
-// safe for concurrent use.
-type DeliveryObserver interface {
+// Observer counts outcomes (metrics). Its methods must be cheap and safe
+// for concurrent use.
+type Observer interface {
 	// WebhookOutcome is called once per finished attempt with its outcome.
-	WebhookOutcome(o DeliveryOutcome)
+	WebhookOutcome(o Outcome)
 }
 
-// DeliveryOutcome is how one delivery attempt ended.
-type DeliveryOutcome string
+// Outcome is how one delivery attempt ended.
+type Outcome string
 
 // Outcomes of an attempt.
 const (
-	OutcomeDelivered DeliveryOutcome = "delivered" // 2xx
-	OutcomeRetry     DeliveryOutcome = "retried"   // failed, tried again later
-	OutcomeFailed    DeliveryOutcome = "failed"    // failed, retry window used up
-	OutcomeGone      DeliveryOutcome = "gone"      // 410: endpoint disabled
+	OutcomeDelivered Outcome = "delivered" // 2xx
+	OutcomeRetry     Outcome = "retried"   // failed, tried again later
+	OutcomeFailed    Outcome = "failed"    // failed, retry window used up
+	OutcomeGone      Outcome = "gone"      // 410: endpoint disabled
 )
 
-// WebhookDelivery is one claimed outbox row with what sending it needs.
-type WebhookDelivery struct {
+// Outbox is what the dispatcher needs from the store: the webhook outbox
+// that the writes of changes fill (store.Store implements it).
+type Outbox interface {
+	// ClaimWebhookDeliveries takes up to n pending deliveries that are due,
+	// of active endpoints, in any organisation, skipping rows another
+	// transaction holds (FOR UPDATE SKIP LOCKED): each gets its attempt
+	// counted and its next attempt moved lease ahead, and the claim commits
+	// before it returns.
+	ClaimWebhookDeliveries(ctx context.Context, n int, lease time.Duration) ([]Delivery, error)
+	// FinishDelivery records an attempt's outcome if the delivery is
+	// still pending at r.Delivery.Attempt (nobody re-claimed it); recorded
+	// reports whether it was. OutcomeGone also switches the endpoint off and
+	// cancels its other pending deliveries.
+	FinishWebhookDelivery(ctx context.Context, r Result) (recorded bool, err error)
+	// ReleaseWebhookDeliveries hands claimed, unsent deliveries back: due
+	// now, the attempt uncounted.
+	ReleaseWebhookDeliveries(ctx context.Context, ds []Delivery) error
+}
+
+// Delivery is one claimed outbox row with what sending it needs.
+type Delivery struct {
 	ID         int64
 	OrgID      uuid.UUID
 	EndpointID uuid.UUID
@@ -53,19 +73,19 @@ type WebhookDelivery struct {
 	Secret  string
 }
 
-// WebhookResult is the outcome of an attempt, for the store to record.
-type WebhookResult struct {
-	Delivery WebhookDelivery
-	Outcome  DeliveryOutcome
+// Result is the outcome of an attempt, for the store to record.
+type Result struct {
+	Delivery Delivery
+	Outcome  Outcome
 	Status   int    // the receiver's status; 0 when no response came
 	Error    string // why no response came, short
 	// RetryIn is the delay before the next attempt (OutcomeRetry).
 	RetryIn time.Duration
 }
 
-// DispatcherConfig shapes a dispatcher; zero fields take their defaults.
-type DispatcherConfig struct {
-	Sender WebhookSender // required
+// Config shapes a dispatcher; zero fields take their defaults.
+type Config struct {
+	Sender Sender // required
 	// Poll is the pause between rounds that found nothing due (default 1 s).
 	// A round that claimed a full batch is followed at once by another.
 	Poll time.Duration
@@ -82,7 +102,7 @@ type DispatcherConfig struct {
 	Retry webhook.RetryConfig
 	// Rand returns values in [0, 1) for the retry jitter (nil: math/rand/v2).
 	Rand     func() float64
-	Observer DeliveryObserver
+	Observer Observer
 	// Now is the clock for webhook-timestamp (nil: time.Now).
 	Now func() time.Time
 }
@@ -96,12 +116,17 @@ type DispatcherConfig struct {
 // before recording leaves the delivery to be sent again, with the same
 // webhook-id, once its lease runs out.
 type Dispatcher struct {
-	s   *Service
-	cfg DispatcherConfig
+	outbox Outbox
+	log    *slog.Logger
+	cfg    Config
 }
 
-// NewDispatcher returns a dispatcher over s's store.
-func (s *Service) NewDispatcher(cfg DispatcherConfig) (*Dispatcher, error) {
+// NewDispatcher returns a dispatcher over outbox that logs to log (nil:
+// nowhere).
+func NewDispatcher(outbox Outbox, log *slog.Logger, cfg Config) (*Dispatcher, error) {
+	if log == nil {
+		log = slog.New(slog.DiscardHandler)
+	}
 	if cfg.Sender == nil {
 		return nil, errors.New("webhook dispatcher: no sender")
 	}
@@ -123,7 +148,7 @@ func (s *Service) NewDispatcher(cfg DispatcherConfig) (*Dispatcher, error) {
 	if err := cfg.Retry.Validate(); err != nil {
 		return nil, fmt.Errorf("webhook dispatcher: %w", err)
 	}
-	return &Dispatcher{s: s, cfg: cfg}, nil
+	return &Dispatcher{outbox: outbox, log: log, cfg: cfg}, nil
 }
 
 // Run delivers until ctx ends, then returns once the sends under way have
@@ -141,7 +166,7 @@ func (d *Dispatcher) Run(ctx context.Context) {
 		}
 		n, err := d.RunOnce(ctx)
 		if err != nil && ctx.Err() == nil {
-			d.s.log.Warn("webhook dispatch round failed", "error", err)
+			d.log.Warn("webhook dispatch round failed", "error", err)
 		}
 		wait := d.cfg.Poll
 		if err == nil && n >= d.cfg.Batch {
@@ -159,7 +184,7 @@ func (d *Dispatcher) RunOnce(ctx context.Context) (int, error) {
 	if ctx.Err() != nil {
 		return 0, ctx.Err()
 	}
-	ds, err := d.s.store.ClaimWebhookDeliveries(ctx, d.cfg.Batch, d.cfg.Lease)
+	ds, err := d.outbox.ClaimWebhookDeliveries(ctx, d.cfg.Batch, d.cfg.Lease)
 	if err != nil {
 		return 0, err
 	}
@@ -169,7 +194,7 @@ func (d *Dispatcher) RunOnce(ctx context.Context) (int, error) {
 	// Sends and their records outlive ctx's cancellation, so that shutdown
 	// never cuts a send off after the receiver may have acted on it.
 	work := context.WithoutCancel(ctx)
-	jobs := make(chan WebhookDelivery)
+	jobs := make(chan Delivery)
 	var wg sync.WaitGroup
 	var mu sync.Mutex
 	var errs []error
@@ -186,7 +211,7 @@ func (d *Dispatcher) RunOnce(ctx context.Context) (int, error) {
 			}
 		}()
 	}
-	var unsent []WebhookDelivery
+	var unsent []Delivery
 feed:
 	for i, del := range ds {
 		if ctx.Err() != nil {
@@ -203,7 +228,7 @@ feed:
 	close(jobs)
 	wg.Wait()
 	if len(unsent) > 0 {
-		if err := d.s.store.ReleaseWebhookDeliveries(work, unsent); err != nil {
+		if err := d.outbox.ReleaseWebhookDeliveries(work, unsent); err != nil {
 			errs = append(errs, err)
 		}
 	}
@@ -211,8 +236,8 @@ feed:
 }
 
 // deliver sends one delivery and records its outcome.
-func (d *Dispatcher) deliver(ctx context.Context, del WebhookDelivery) error {
-	res := WebhookResult{Delivery: del}
+func (d *Dispatcher) deliver(ctx context.Context, del Delivery) error {
+	res := Result{Delivery: del}
 	key, err := webhook.ParseSecret(del.Secret)
 	if err != nil {
 		res.Error = "the endpoint's secret is unusable"
@@ -237,7 +262,7 @@ func (d *Dispatcher) deliver(ctx context.Context, del WebhookDelivery) error {
 			res.Outcome = OutcomeFailed
 		}
 	}
-	recorded, err := d.s.store.FinishWebhookDelivery(ctx, res)
+	recorded, err := d.outbox.FinishWebhookDelivery(ctx, res)
 	if err != nil {
 		return fmt.Errorf("record webhook delivery %d: %w", del.ID, err)
 	}
@@ -245,7 +270,7 @@ func (d *Dispatcher) deliver(ctx context.Context, del WebhookDelivery) error {
 		d.cfg.Observer.WebhookOutcome(res.Outcome)
 	}
 	if recorded && res.Outcome == OutcomeGone {
-		d.s.log.Warn("webhook endpoint disabled: the receiver answered 410 Gone",
+		d.log.Warn("webhook endpoint disabled: the receiver answered 410 Gone",
 			"org_id", del.OrgID, "endpoint_id", del.EndpointID)
 	}
 	return nil
